@@ -1,0 +1,1 @@
+"""The ``phasekit`` command line."""

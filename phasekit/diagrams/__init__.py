@@ -1,0 +1,1 @@
+"""Phase diagrams: ternary isotherms, polytherms and projections."""

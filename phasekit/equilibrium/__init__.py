@@ -1,0 +1,1 @@
+"""Saturation indices and the solid–liquid equilibrium solver."""

@@ -1,0 +1,1 @@
+"""Process paths: evaporation, cooling and heating, mixing, dissolution, pond trains."""

@@ -1,0 +1,1 @@
+"""Figures: plotly for the app, matplotlib/python-ternary for reports."""

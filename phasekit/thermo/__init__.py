@@ -1,0 +1,1 @@
+"""Water properties, the Pitzer activity model and solid solubility products."""

