@@ -1,4 +1,4 @@
-"""The model object of the public API: activity model plus solids."""
+"""The model object of the public API: the activity model plus the solids of one database."""
 
 from __future__ import annotations
 
@@ -6,10 +6,39 @@ from functools import lru_cache
 
 from phasekit.thermo.database import Database
 from phasekit.thermo.pitzer import PitzerModel
+from phasekit.thermo.solids import SolidSet
 
 
 class Model(PitzerModel):
-    """Activity model and solids of one database (the embedded one by default)."""
+    """Activity model and solids of one database (the embedded one by default).
+
+    Parameters
+    ----------
+    database : Database, optional
+        Tables of parameters and solids; the embedded database by default.
+    """
+
+    def __init__(self, database: Database | None = None):
+        super().__init__(database if database is not None else Database())
+        self.solids = SolidSet(self.db.solids, self.species)
+
+    def solid_stoichiometry(self, name: str) -> dict:
+        """Ions and hydrate water of a solid, e.g. ``{"K": 1, "Mg": 1, "Cl": 3, "H2O": 6}`` for carnallite."""
+        st = self.solids[name].stoichiometry
+        return {k: int(v) if float(v).is_integer() else v for k, v in st.items()}
+
+    # the equilibrium layer adds: saturation, equilibrate (see phasekit.equilibrium)
+    def saturation(self, brine, temp_c: float, **kwargs):
+        """Saturation state of every solid; see :func:`phasekit.equilibrium.saturation.saturation`."""
+        from phasekit.equilibrium.saturation import saturation
+
+        return saturation(self, brine, temp_c, **kwargs)
+
+    def equilibrate(self, brine, temp_c: float, **kwargs):
+        """Stable assemblage; see :func:`phasekit.equilibrium.solver.equilibrate`."""
+        from phasekit.equilibrium.solver import equilibrate
+
+        return equilibrate(self, brine, temp_c, **kwargs)
 
 
 @lru_cache(maxsize=1)

@@ -40,6 +40,20 @@ class Database:
         self.solids = read_csv("solids.csv", self.directory) if solids_path.exists() else pd.DataFrame()
         self._validate()
 
+    def with_tables(self, **tables) -> Database:
+        """A copy of this database with some tables replaced (``binary``, ``mixing``, ``solids``).
+
+        The embedded files are never changed; overlays and fits build databases this way.
+        """
+        new = object.__new__(Database)
+        new.__dict__.update(self.__dict__)
+        for name, table in tables.items():
+            if name not in ("binary", "mixing", "solids"):
+                raise InputError("table", name, "'binary', 'mixing' or 'solids'")
+            setattr(new, name, table.reset_index(drop=True).copy())
+        new._validate()
+        return new
+
     def parse_species(self, name) -> str:
         """Canonical species name (raises :class:`InputError` if unknown)."""
         return chem.parse_species(name)
