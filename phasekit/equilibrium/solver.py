@@ -292,6 +292,46 @@ def solve(model, b, water, temp_c, initial_active=(), candidates=None, m0=None, 
     )
 
 
+def solve_robust(model, b, water, temp_c, candidates=None, warm: EquilibriumState | None = None) -> EquilibriumState:
+    """:func:`solve`, with a continuation in the water amount as fallback.
+
+    When the direct solve fails (typically a brine far beyond saturation, where Newton's
+    method starts far from the answer), the same totals are first equilibrated with enough
+    water to be undersaturated, and the water is then taken away in geometric steps, each
+    solve warm-started from the last (the halving of a failed step makes it robust).
+    """
+    try:
+        if warm is not None:
+            return solve(model, b, water, temp_c, initial_active=warm.active, candidates=candidates,
+                         m0=warm.m, w0=warm.w * water / max(warm.w + M_WATER * (warm.n @ model.solids.nw), 1e-300),
+                         n0=warm.n)
+        return solve(model, b, water, temp_c, candidates=candidates)
+    except ConvergenceError as first:
+        error = first
+    # start where the brine is undersaturated: dilute until the largest SI is below zero
+    factor = 1.0
+    for _ in range(60):
+        factor *= 2.0
+        m = np.where(b > 0, b / (water * factor), 0.0)
+        if np.nanmax(np.where(np.isfinite(s := _si(model, m, temp_c)), s, -np.inf)) < 0:
+            break
+    state = solve(model, b, water * factor, temp_c, candidates=candidates)
+    log_f = np.log(factor)
+    pos, step = log_f, log_f / 8.0
+    while pos > 0:
+        nxt = max(pos - step, 0.0)
+        try:
+            state = solve(model, b, water * np.exp(nxt), temp_c, initial_active=state.active,
+                          candidates=candidates, m0=state.m, w0=state.w * np.exp(nxt - pos), n0=state.n)
+            pos = nxt
+            step = min(step * 1.5, log_f / 4.0)
+        except ConvergenceError:
+            step /= 2.0
+            if step < 1e-6:
+                raise ConvergenceError(f"{error} (continuation in water also failed)", error.state) from None
+    return state
+
+
 def equilibrate(model, brine, temp_c: float, add_solids: dict | None = None, initial_solids=(),
                 exclude=()) -> EquilibriumResult:
     """Stable assemblage of a brine (plus optionally added solids) at ``temp_c``.
@@ -334,11 +374,14 @@ def equilibrate(model, brine, temp_c: float, add_solids: dict | None = None, ini
     init = [model.solids.index[model.solids.resolve(s)] for s in initial_solids]
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", ValidityWarning)
-        st = solve(model, b, water, float(temp_c), candidates=cands)
         if init:
-            st2 = solve(model, b, water, float(temp_c), initial_active=init, candidates=cands,
-                        m0=st.m, w0=st.w, n0=None)
-            st = st2 if set(st2.active) == set(st.active) else st
+            try:
+                st = solve(model, b, water, float(temp_c), initial_active=init, candidates=cands,
+                           m0=np.where(b > 0, b / water, 0.0), w0=water, n0=None)
+            except ConvergenceError:
+                st = solve_robust(model, b, water, float(temp_c), candidates=cands)
+        else:
+            st = solve_robust(model, b, water, float(temp_c), candidates=cands)
     return result_from_state(model, st, float(temp_c))
 
 
