@@ -1,19 +1,30 @@
 """phasekit: solid–liquid equilibria of salt brines with the Pitzer model."""
 
-from phasekit.errors import ConvergenceError, InputError, PhasekitError, RangeError, ValidityWarning
+from phasekit.chemistry.brine import Brine
 from phasekit.equilibrium.solubility import polytherm, solubility
+from phasekit.errors import ConvergenceError, InputError, PhasekitError, RangeError, ValidityWarning
 from phasekit.model import Model, default_model
+from phasekit.paths import Pond, cool, dissolve, evaporate, heat, mix, pond_train, programme
 
 __version__ = "0.1.0"
 
 __all__ = [
+    "Brine",
     "ConvergenceError",
     "InputError",
     "Model",
     "PhasekitError",
     "RangeError",
     "ValidityWarning",
+    "Pond",
+    "cool",
     "default_model",
+    "dissolve",
+    "evaporate",
+    "heat",
+    "mix",
+    "pond_train",
+    "programme",
     "polytherm",
     "solubility",
 ]

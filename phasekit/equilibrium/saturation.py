@@ -132,7 +132,8 @@ def saturation(model, brine, temp_c: float, amounts: bool | None = None) -> pd.D
     warns = model._validity(m0[None, :], temp_c, ion)
     rng = model.solids.t_range
     for k, name in enumerate(model.solids.names):
-        if np.isfinite(si[k]) and not (rng[k, 0] <= temp_c <= rng[k, 1]):
+        # only for solids near or above saturation, where the value matters
+        if np.isfinite(si[k]) and si[k] > -0.5 and not (rng[k, 0] <= temp_c <= rng[k, 1]):
             warns.append(f"{name}: {temp_c:g} °C outside the validity range {rng[k, 0]:g}–{rng[k, 1]:g} °C "
                          "of its solubility product")
     for w in warns:

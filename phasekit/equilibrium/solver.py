@@ -135,6 +135,10 @@ def _newton(model, b, water, temp_c, act, m, w, n, max_iter=60):
     def merit(r):
         return float(r @ r)
 
+    if a == 0:
+        # no solid: the liquid holds everything
+        m_out = np.where(b > 0, b / water, 0.0)
+        return m_out, float(water), np.zeros(len(model.solids.names)), 0, 0.0, 0.0
     r, J = evaluate(x)
     it = 0
     for it in range(1, max_iter + 1):  # noqa: B007 (it is returned)
@@ -153,14 +157,15 @@ def _newton(model, b, water, temp_c, act, m, w, n, max_iter=60):
         lam = 1.0
         for _ in range(30):
             xn = x + lam * dx
-            rn, _ = evaluate(xn, jac=False)
+            # the full step is usually taken: evaluate it with its Jacobian at once
+            rn, Jn = evaluate(xn, jac=lam == 1.0)
             if np.all(np.isfinite(rn)) and merit(rn) <= (1 - 1e-4 * lam) * f0:
                 break
             lam *= 0.5
         else:
             return None
         x = xn
-        r, J = evaluate(x)
+        r, J = (rn, Jn) if Jn is not None else evaluate(x)
     else:
         return None
     if not (np.all(np.abs(r[: p + 1]) < TOL_BALANCE * 10) and np.all(np.abs(r[p + 1:]) < TOL_ACTION * 10)):
@@ -238,6 +243,20 @@ def solve(model, b, water, temp_c, initial_active=(), candidates=None, m0=None, 
             # restart this active set from the dissolved state
             sol = _newton(model, b, water, temp_c, act, np.where(b > 0, b / water, 0.0), water,
                           np.zeros(len(model.solids.names)))
+        if sol is None and act:
+            # no solution with this assemblage near here: try its neighbours (one solid more or less)
+            si_now = _si(model, m, temp_c)
+            more = sorted((k for k in cand if k not in act and si_now[k] > -1e-6), key=lambda k: -si_now[k])
+            trials = [tuple(sorted(act + (k,))) for k in more] + [tuple(x for x in act if x != j) for j in act]
+            for trial in trials:
+                if trial in seen or not _rank_ok(model, trial, pres):
+                    continue
+                sol = _newton(model, b, water, temp_c, trial, m, w, n)
+                if sol is not None:
+                    act = trial
+                    seen.add(act)
+                    changes += 1
+                    break
         if sol is None:
             raise ConvergenceError(
                 f"Newton iteration failed for the assemblage {[model.solids.names[k] for k in act]} at {temp_c:g} °C",
