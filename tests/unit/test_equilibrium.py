@@ -119,3 +119,18 @@ def test_saturation_table(model):
     assert abs(again.loc["halite", "saturation_index"]) < 1e-9
     assert again.loc["halite", "state"] == "saturated"
     assert SI_TOLERANCE > 0
+
+
+def test_non_convergence_raises_with_state(model):
+    """A solver that cannot finish raises ConvergenceError carrying its state, never an answer."""
+    import numpy as np
+
+    from phasekit.equilibrium.solver import solve
+    from phasekit.errors import ConvergenceError
+
+    b = np.zeros(len(model.species))
+    for s, v in {"Na": 8.0, "K": 5.0, "Cl": 13.0}.items():
+        b[model.index[s]] = v
+    with pytest.raises(ConvergenceError) as err:
+        solve(model, b, 1.0, 25.0, max_changes=0)
+    assert err.value.state["active"]
