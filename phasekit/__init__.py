@@ -3,7 +3,7 @@
 from phasekit.chemistry.brine import Brine
 from phasekit.equilibrium.solubility import polytherm, solubility
 from phasekit.errors import ConvergenceError, InputError, PhasekitError, RangeError, ValidityWarning
-from phasekit.model import Model, default_model
+from phasekit.model import Model, default_model, load_model
 from phasekit.paths import Pond, cool, dissolve, evaporate, heat, mix, pond_train, programme
 
 __version__ = "0.1.0"
@@ -22,6 +22,7 @@ __all__ = [
     "dissolve",
     "evaporate",
     "heat",
+    "load_model",
     "mix",
     "pond_train",
     "programme",

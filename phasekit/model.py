@@ -21,6 +21,19 @@ class Model(PitzerModel):
     def __init__(self, database: Database | None = None):
         super().__init__(database if database is not None else Database())
         self.solids = SolidSet(self.db.solids, self.species)
+        #: names of the database overlays applied (empty for the embedded database)
+        self.overlays: list = []
+
+    def with_overlays(self, *overlays) -> Model:
+        """A new model with overlay files applied (see :mod:`phasekit.overlay`)."""
+        from phasekit.overlay import apply_overlays
+
+        return apply_overlays(self, overlays)
+
+    @property
+    def label(self) -> str:
+        """Database in use, shown on every result: "embedded database" or the overlays on it."""
+        return "embedded database" + (" + overlay " + ", ".join(self.overlays) if self.overlays else "")
 
     def solid_stoichiometry(self, name: str) -> dict:
         """Ions and hydrate water of a solid, e.g. ``{"K": 1, "Mg": 1, "Cl": 3, "H2O": 6}`` for carnallite."""
@@ -45,3 +58,8 @@ class Model(PitzerModel):
 def default_model() -> Model:
     """The model on the embedded database, loaded once and cached."""
     return Model(Database())
+
+
+def load_model(overlays=()) -> Model:
+    """The embedded database with overlay files applied (the embedded model if none)."""
+    return default_model().with_overlays(*overlays) if overlays else default_model()

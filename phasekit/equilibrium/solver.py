@@ -81,6 +81,7 @@ class EquilibriumResult:
     saturation: pd.DataFrame
     converged: dict
     warnings: list = field(default_factory=list)
+    database: str = "embedded database"
 
     def solids_mass_g(self, model=None) -> dict:
         """Mass of each solid in g per kg of initial water."""
@@ -431,4 +432,5 @@ def result_from_state(model, st: EquilibriumState, temp_c: float, water_basis: f
                    "mass_balance_residual": st.balance_residual, "mass_action_residual": st.action_residual,
                    "method": "active-set Newton on mass action and mass balance"},
         warnings=warns,
+        database=getattr(model, "label", "embedded database"),
     )

@@ -102,7 +102,7 @@ def _result(model, path, end, mode, m0, temp0):
     warns += model._validity(np.array([r["m"] for r in path.records]), steps["temp_c"].to_numpy(),
                              steps["ionic_strength"].to_numpy())
     return PathResult(events, steps, precipitated, end, mode, _density(model, m0, temp0), solution_mass, masses,
-                      warns)
+                      warns, getattr(model, "label", "embedded database"))
 
 
 def _species_masses(model):

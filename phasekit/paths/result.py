@@ -41,6 +41,7 @@ class PathResult:
     initial_solution_mass_kg: float = float("nan")
     solid_masses: dict = field(default_factory=dict)
     warnings: list = field(default_factory=list)
+    database: str = "embedded database"
 
     @property
     def first_solid(self) -> dict | None:
