@@ -50,6 +50,10 @@ class ValidityWarning(UserWarning):
     """A result lies outside the validity range of a parameter it used."""
 
 
+class AnalysisWarning(UserWarning):
+    """An analysis is doubtful (charge imbalance, a density far from the model's)."""
+
+
 def warn_validity(message: str) -> None:
     """Emit a :class:`ValidityWarning` (shown once per message by Python)."""
     warnings.warn(message, ValidityWarning, stacklevel=3)

@@ -39,7 +39,7 @@ import pandas as pd
 from phasekit.chemistry.density import estimate_density
 from phasekit.chemistry.salts import parse_salt, salt_formula_mass
 from phasekit.chemistry.species import M_WATER, SPECIES, parse_species
-from phasekit.errors import ConvergenceError, InputError, PhasekitError, RangeError, ValidityWarning
+from phasekit.errors import AnalysisWarning, ConvergenceError, InputError, PhasekitError, RangeError, ValidityWarning
 
 #: |charge balance| (%) above which an analysis carries a warning (see the module docstring)
 CHARGE_BALANCE_WARN_PERCENT = 5.0
@@ -70,10 +70,6 @@ _UNIT_ALIASES = {"mg/l": "mg/L", "g/l": "g/L", "wt%": "mass%", "mass %": "mass%"
 _UNITS_TEXT = "one of 'mol/kg' (per kg water), 'mg/kg', 'g/kg', 'mass%' (per kg solution), 'mg/L', 'g/L'"
 
 _HYDRATE = re.compile(r"^(?P<salt>[^·•.*(]+(?:\([^)]*\)\d*)?)\s*(?:[·•.*]\s*(?P<n1>\d*)\s*H2O|\(H2O\)(?P<n2>\d+))$")
-
-
-class AnalysisWarning(UserWarning):
-    """An analysis is doubtful (charge imbalance, a density far from the model's)."""
 
 
 # ---------------------------------------------------------------------------- helpers
