@@ -6,9 +6,17 @@ Two kinds of fit:
   :mod:`phasekit.thermo.tempfn`) from compositions saturated with it: the target of each point
   is its ion activity product computed with the activity model, so the fit is linear in the
   coefficients.
-* :func:`fit_parameters` — Pitzer parameters (θ, ψ, or a binary β/C^φ) from compositions saturated
-  with known solids: residuals ln IAP - ln K of every solid at every point, non-linear least
-  squares with a finite-difference Jacobian.
+* :func:`fit_parameters` — Pitzer parameters (θ, ψ, or a binary β/C^φ, any coefficient of their
+  temperature function) and, optionally, ln K coefficients of solids (``("lnk", solid, "a0")``),
+  from compositions saturated with known solids: residuals ln IAP - ln K of every solid at every
+  point (or the same converted to ln m, see below), non-linear least squares with a
+  finite-difference Jacobian.
+
+Residuals in ln m. ``ln IAP - ln K`` weighs the points unequally: for a hydrate in a concentrated
+solution (CaCl2·6H2O near 7 mol/kg) ln IAP hardly changes with the molality, so a small residual in
+ln K hides a large error in solubility. With ``residual="ln_m"`` each residual is divided by
+∂ ln IAP / ∂ ln s, the slope of ln IAP when the whole composition is scaled by s; to first order it
+is then the error in ln of the saturated concentration, the quantity that was measured.
 
 Both return a :class:`FitResult` with the parameter covariance s² (JᵀJ)⁻¹, s² = SSR / (n - p).
 """
@@ -44,6 +52,8 @@ class FitResult:
     rms : float
     n_points, dof : int
     notes : list of str
+    model : Model or None
+        The model with the fitted values (set by :func:`fit_parameters`).
     """
 
     parameters: dict
@@ -54,6 +64,7 @@ class FitResult:
     n_points: int
     dof: int
     notes: list = field(default_factory=list)
+    model: object = None
 
 
 def data_molalities(model, data: pd.DataFrame) -> np.ndarray:
@@ -154,7 +165,17 @@ def fit_ln_k(solid: str, data: pd.DataFrame, terms=("a0", "a3", "a4"), model=Non
                      float(np.sqrt(np.mean(resid**2))), len(m), dof, notes)
 
 
-_COEF = set(tempfn.COEFFS)
+#: derived coefficient "cp": c [Tr (1/T - 1/Tr) + ln(T/Tr)], i.e. a3 = c Tr and a4 = c. Its value and its
+#: first derivative vanish at Tr, so it changes neither the 25 °C value nor the 25 °C derivative; it is the
+#: shape of a constant heat-capacity term (the relative heat capacity J of a solution for a Pitzer
+#: parameter, a constant ΔCp for ln K), where a2 is a constant second derivative.
+CP = "cp"
+_COEF = set(tempfn.COEFFS) | {CP}
+
+
+def _cp_basis(temp_k):
+    t = np.asarray(temp_k, dtype=float)
+    return tempfn.TR * (1.0 / t - 1.0 / tempfn.TR) + np.log(t / tempfn.TR)
 
 
 def _split(spec):
@@ -165,15 +186,28 @@ def _split(spec):
     return spec, "a0"
 
 
-def _select(db, spec):
-    """(table name, table copy, boolean row selector) of a parameter spec."""
-    kind = spec[0]
+_TABLE_OF = {"theta": "mixing", "psi": "mixing", "lnk": "solids",
+             "beta0": "binary", "beta1": "binary", "beta2": "binary", "cphi": "binary"}
+
+
+def _select(db, spec, table=None):
+    """(table name, table, boolean row selector) of a parameter spec.
+
+    ``table`` (default: a copy of the database's) is the table to select from; a missing θ or ψ
+    row is appended to it with zero coefficients.
+    """
+    kind = spec[0] if spec else None
+    name = _TABLE_OF.get(kind)
+    if name is None:
+        raise InputError("parameter", spec,
+                         "('theta', i, j), ('psi', i, j, k), (beta0|beta1|beta2|cphi, cation, anion) or "
+                         "('lnk', solid), optionally followed by a coefficient a0..a4")
+    t = getattr(db, name).copy() if table is None else table
     if kind in ("theta", "psi"):
         if len(spec) != (3 if kind == "theta" else 4):
             raise InputError("parameter", spec, "('theta', i, j) or ('psi', i, j, k)")
         s1, s2 = spec[1], spec[2]
         s3 = spec[3] if kind == "psi" else ""
-        t = db.mixing.copy()
         sel = (t["kind"] == kind) & (
             ((t["species1"] == s1) & (t["species2"] == s2)) | ((t["species1"] == s2) & (t["species2"] == s1))
         ) & (t["species3"] == s3)
@@ -184,55 +218,101 @@ def _select(db, spec):
                                              "source": "fitted in this project"}])], ignore_index=True)
             sel = pd.Series(False, index=t.index)
             sel.iloc[-1] = True
-        return "mixing", t, sel
-    if kind in ("beta0", "beta1", "beta2", "cphi"):
-        if len(spec) != 3:
-            raise InputError("parameter", spec, f"('{kind}', cation, anion)")
-        t = db.binary.copy()
-        sel = (t["cation"] == spec[1]) & (t["anion"] == spec[2]) & (t["parameter"] == kind)
+        return name, t, sel
+    if kind == "lnk":
+        if len(spec) != 2:
+            raise InputError("parameter", spec, "('lnk', solid) followed by a coefficient a0..a4")
+        sel = t["solid"] == spec[1]
         if not sel.any():
-            raise InputError("parameter", spec, "a binary parameter present in the database")
-        return "binary", t, sel
-    raise InputError("parameter", spec,
-                     "('theta', i, j), ('psi', i, j, k) or (beta0|beta1|beta2|cphi, cation, anion), "
-                     "optionally followed by a coefficient a0..a4")
+            raise InputError("parameter", spec, "a solid of the database (its name in data/solids.csv)")
+        return name, t, sel
+    if len(spec) != 3:
+        raise InputError("parameter", spec, f"('{kind}', cation, anion)")
+    sel = (t["cation"] == spec[1]) & (t["anion"] == spec[2]) & (t["parameter"] == kind)
+    if not sel.any():
+        raise InputError("parameter", spec, "a binary parameter present in the database")
+    return name, t, sel
 
 
 def with_parameters(model, specs, values):
-    """A new model whose database has each parameter spec set to its value."""
+    """A new model whose database has each parameter spec set to its value.
+
+    Specs as for :func:`fit_parameters`; the model's own database is not changed.
+    """
     from phasekit.model import Model
 
-    db = model.db
+    specs, values = list(specs), list(values)
+    if len(specs) != len(values):
+        raise InputError("values", values, f"one value per parameter spec ({len(specs)})")
+    tables: dict = {}
     for spec, value in zip(specs, values):
         base, coef = _split(spec)
-        name, table, sel = _select(db, base)
-        table.loc[sel, coef] = float(value)
-        db = db.with_tables(**{name: table})
-    return Model(db)
+        name, table, sel = _select(model.db, base, tables.get(_TABLE_OF.get(base[0] if base else None)))
+        if coef not in _COEF:
+            raise InputError("parameter", spec, f"a coefficient among {tempfn.COEFFS} or '{CP}'")
+        cells = {"a3": tempfn.TR * float(value), "a4": float(value)} if coef == CP else {coef: float(value)}
+        for c, v in cells.items():
+            if table[c].dtype.kind != "f":
+                table[c] = table[c].astype(float)
+            table.loc[sel, c] = v
+        tables[name] = table
+    return Model(model.db.with_tables(**tables))
 
 
-def fit_parameters(parameters: list, data: pd.DataFrame, model=None) -> FitResult:
-    """Fit Pitzer parameters to compositions saturated with known solids.
+def fit_parameters(parameters: list, data: pd.DataFrame, model=None, residual: str = "ln_k",
+                   start=None, penalty=None) -> FitResult:
+    """Fit Pitzer parameters (and optionally ln K coefficients) to compositions saturated with known solids.
 
     Parameters
     ----------
     parameters : list of tuple
-        e.g. ``[("theta", "Na", "K"), ("psi", "Na", "K", "Cl"), ("beta0", "K", "NO3", "a1")]``;
-        the coefficient (default a0, the 25 °C value) of the temperature function is fitted,
-        starting from its value in the database.
+        e.g. ``[("theta", "Na", "K"), ("psi", "Na", "K", "Cl"), ("beta0", "K", "NO3", "a1"),
+        ("lnk", "niter", "a0")]``; the coefficient (default a0, the 25 °C value) of the
+        temperature function is fitted, starting from its value in the database. The derived
+        coefficient ``"cp"`` sets a3 = c Tr and a4 = c together (see :data:`CP`).
     data : DataFrame
         ``temp_c``, species molality columns (or ``salt`` and a concentration) and ``solids``
         (names separated by ``+`` for points saturated with several solids).
+    model : Model, optional
+        Model whose database holds every other value (the embedded one by default).
+    residual : {"ln_k", "ln_m", "solubility"}
+        ``"ln_k"``: ln IAP - ln K. ``"ln_m"``: the same divided by ∂ ln IAP / ∂ ln s (scaling of
+        the whole composition), i.e. to first order the error in ln of the saturated concentration.
+        ``"solubility"`` (single-salt data only: ``salt`` and a concentration, one solid per row):
+        ln m_model - ln m_data with m_model the solubility of the row's solid computed by
+        :func:`phasekit.equilibrium.solubility.solubility` (the first saturation root above
+        infinite dilution), so that a fit cannot hide a spurious lower root of ln IAP.
+    start : sequence of float, optional
+        Starting values (default: the values in the database), so that a calibration does not
+        depend on what the files held before it.
+    penalty : callable, optional
+        ``penalty(model) -> array`` of extra residuals appended to the data residuals (zero where a
+        physical condition holds, e.g. an activity that must rise with molality). They take part in
+        the least squares but not in ``residuals``, ``rms`` or the degrees of freedom.
+
+    Returns
+    -------
+    FitResult
+        ``parameters`` keyed by ``"/".join(spec)``; ``model`` is the model with the fitted values.
+
+    Raises
+    ------
+    InputError
+        No parameter, no ``solids`` column, an unknown solid, fewer saturation conditions than
+        parameters, or an unknown ``residual``.
     """
     from phasekit.model import default_model
 
     model = model or default_model()
     if not parameters:
         raise InputError("parameters", parameters, "at least one parameter")
-    if "solids" not in data.columns:
-        raise InputError("data", list(data.columns), "a 'solids' column naming the saturating solid(s)")
+    if residual not in ("ln_k", "ln_m", "solubility"):
+        raise InputError("residual", residual, "'ln_k', 'ln_m' or 'solubility'")
+    if not isinstance(data, pd.DataFrame) or "solids" not in data.columns:
+        raise InputError("data", list(data.columns) if isinstance(data, pd.DataFrame) else type(data).__name__,
+                         "a table with a 'solids' column naming the saturating solid(s)")
     m = data_molalities(model, data)
-    temps = data["temp_c"].to_numpy(float)
+    temps = pd.to_numeric(data["temp_c"], errors="raise").to_numpy(float)
     pairs = []
     for r, text in enumerate(data["solids"]):
         for name in str(text).split("+"):
@@ -242,32 +322,79 @@ def fit_parameters(parameters: list, data: pd.DataFrame, model=None) -> FitResul
                          f"at least {len(parameters)} to fit {len(parameters)} parameters")
     pr = np.array([p[0] for p in pairs])
     pk_ = np.array([p[1] for p in pairs])
-    x0 = []
-    for spec in parameters:
-        base, coef = _split(spec)
-        _, table, sel = _select(model.db, base)
-        x0.append(float(table.loc[sel, coef].iloc[0]))
+    if start is None:
+        x0 = []
+        for spec in parameters:
+            base, coef = _split(spec)
+            _, table, sel = _select(model.db, base)
+            x0.append(float(table.loc[sel, "a4" if coef == CP else coef].iloc[0]))
+    else:
+        x0 = [float(v) for v in start]
+        if len(x0) != len(parameters):
+            raise InputError("start", start, f"{len(parameters)} starting values, one per parameter")
+    groups = [(float(t), np.flatnonzero(temps == t)) for t in np.unique(temps)]
+    if residual == "solubility":
+        if "salt" not in data.columns or any("+" in str(x) for x in data["solids"]):
+            raise InputError("residual", residual, "single-salt data (a 'salt' column, one solid per row) "
+                             "for residual='solubility'")
+        mtot = m.sum(axis=1)
+        solid_names = [model.solids.names[k] for k in pk_]
 
-    def resid(x):
+    def resid_solubility(x):
+        from phasekit.equilibrium.solubility import _resolve, _saturated_molality
+
         mod = with_parameters(model, parameters, x)
-        ln_k = mod.solids.ln_k(temps)[pr, pk_]
-        li = np.empty(len(m), dtype=object)
         out = np.empty(len(pairs))
         with warnings.catch_warnings():
             warnings.simplefilter("ignore", ValidityWarning)
-            for t in np.unique(temps):
-                rows = np.flatnonzero(temps == t)
-                ln_g, _, ln_aw, _, _ = mod.compute(m[rows], float(t))
-                vals = mod.solids.ln_iap(m[rows], ln_g, ln_aw)
-                for i, r in enumerate(rows):
-                    li[r] = vals[i]
-        for j, (r, k) in enumerate(pairs):
-            out[j] = li[r][k]
-        return out - ln_k
+            for j, (r, name) in enumerate(zip(pr, solid_names)):
+                info, idx = _resolve(mod, name)
+                ms = _saturated_molality(mod, info.ions, idx, float(temps[r]))[0][0]
+                out[j] = np.log(ms * info.vec.sum() / mtot[r]) if np.isfinite(ms) else 5.0
+        return out
 
-    sol = least_squares(resid, np.array(x0), diff_step=1e-6, x_scale="jac")
+    h = 1e-4  # relative step of the composition scaling for the ln-m slope
+
+    def resid_composition(x):
+        mod = with_parameters(model, parameters, x)
+        ln_k = mod.solids.ln_k(temps)[pr, pk_]
+        iap = np.empty((len(m), len(mod.solids.names)))
+        slope = np.ones_like(iap)
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", ValidityWarning)
+            for t, rows in groups:
+                ln_g, _, ln_aw, _, _ = mod.compute(m[rows], t)
+                iap[rows] = mod.solids.ln_iap(m[rows], ln_g, ln_aw)
+                if residual == "ln_m":
+                    ms = m[rows] * (1.0 + h)
+                    ln_g2, _, ln_aw2, _, _ = mod.compute(ms, t)
+                    with np.errstate(invalid="ignore"):
+                        slope[rows] = (mod.solids.ln_iap(ms, ln_g2, ln_aw2) - iap[rows]) / np.log1p(h)
+        return (iap[pr, pk_] - ln_k) / slope[pr, pk_]
+
+    data_resid = resid_solubility if residual == "solubility" else resid_composition
+    if penalty is None:
+        resid = data_resid
+    else:
+        def resid(x):
+            return np.concatenate([data_resid(x), np.asarray(penalty(with_parameters(model, parameters, x)), float)])
+
+    # each coefficient is scaled by the largest magnitude of its basis function over the data, so that
+    # all fitted variables are of order one and the finite-difference steps suit every coefficient
+    bmax = dict(zip(tempfn.COEFFS, np.max(np.abs(tempfn.basis(temps + 273.15)), axis=0)))
+    bmax[CP] = float(np.max(np.abs(_cp_basis(temps + 273.15))))
+    scale = np.array([1.0 / bmax[_split(sp)[1]] if bmax[_split(sp)[1]] > 0 else 1.0 for sp in parameters])
+    sol = least_squares(lambda z: resid(z * scale), np.array(x0) / scale, x_scale="jac", xtol=1e-12, ftol=1e-12,
+                        gtol=1e-12, max_nfev=200 * (len(parameters) + 1))
+    x = sol.x * scale
+    n = len(pairs)
+    jac = sol.jac[:n] / scale[None, :]
+    fun = sol.fun[:n]
     names = ["/".join(map(str, s)) for s in parameters]
-    cov, dof = _covariance(sol.jac, sol.fun, names)
-    return FitResult(dict(zip(names, sol.x.tolist())), cov, {k: float(np.sqrt(cov.loc[k, k])) for k in names},
-                     sol.fun, float(np.sqrt(np.mean(sol.fun**2))), len(pairs), dof,
-                     [] if dof > 0 else ["as many conditions as parameters: no uncertainty estimate"])
+    cov, dof = _covariance(jac, fun, names)
+    notes = [] if dof > 0 else ["as many conditions as parameters: no uncertainty estimate"]
+    if penalty is not None and np.any(sol.fun[n:] != 0):
+        notes.append(f"penalty residuals not all zero at the solution (largest {np.max(np.abs(sol.fun[n:])):.3g})")
+    return FitResult(dict(zip(names, x.tolist())), cov, {k: float(np.sqrt(cov.loc[k, k])) for k in names},
+                     fun, float(np.sqrt(np.mean(fun**2))), len(pairs), dof,
+                     notes, model=with_parameters(model, parameters, x))

@@ -1,63 +1,381 @@
-"""Calibrate ln K(T) of the single-salt solids on the 'fit' rows of the binary solubility data.
+"""Calibrate the single-salt solids and the temperature coefficients of their Pitzer parameters.
 
-Reads data/reference/binary_solubility.csv, fits each solid with phasekit.fitting.fit_ln_k
-(terms chosen by the number of points), and rewrites the matching rows of data/solids.csv,
-marking them "fitted in this project to ...". The 'check' rows are never used here.
+One command regenerates every value this calibration owns from the data files::
 
-Run:  python scripts/calibrate_solids.py [--dry-run]
+    python scripts/calibrate_solids.py            # rewrite data/solids.csv and data/pitzer_binary.csv
+    python scripts/calibrate_solids.py --dry-run  # fit and report only
+
+Inputs (all in ``data/``):
+
+* ``reference/binary_solubility.csv`` — solubilities; only the rows with ``role=fit`` are read;
+* ``reference/thermochemistry.csv`` — ΔfH° and Cp° of ions, water and solids (NBS82), giving each
+  solid's ΔH°sol and ΔCp°sol, hence a3 and a4 of its ln K(T) (van 't Hoff, constant ΔCp°):
+  a3 = -ΔH°/R + ΔCp° Tr/R, a4 = ΔCp°/R (see ``phasekit/thermo/tempfn.py``);
+* ``reference/calibration.toml`` — which Pitzer temperature coefficients are fitted for each salt;
+* the current ``pitzer_binary.csv`` (25 °C values and the coefficients that are not fitted) and
+  ``solids.csv``.
+
+For each salt, the a0 of its solids' ln K and the listed Pitzer coefficients (started from zero, so the
+result does not depend on what the files held before) are fitted together with
+``phasekit.fitting.fit_parameters`` (residuals in ln m of the solved solubility, started from a fit on
+linearized residuals). ΔH° and ΔCp° are never fitted. The validity
+range of a solid is the temperature range of its fit rows, widened to the model's transition temperatures
+in pure water (found by ``phasekit.polytherm``) and to 25 °C (where ΔH° and ΔCp° hold); that of a fitted
+Pitzer pair is the range of the fit rows
+(with 25 °C), and its ``m_max`` the highest saturated molality fitted. The 'check' rows are not read.
 """
 
 from __future__ import annotations
 
+import csv
+import io
+import math
 import sys
+import tomllib
+import warnings
 from pathlib import Path
+
+import numpy as np
+import pandas as pd
 
 ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT))
 
+import phasekit as pk  # noqa: E402
 from phasekit.data_files import read_csv  # noqa: E402
-from phasekit.fitting import fit_ln_k  # noqa: E402
+from phasekit.errors import ValidityWarning  # noqa: E402
+from phasekit.fitting import data_molalities, fit_parameters  # noqa: E402
 from phasekit.model import Model  # noqa: E402
+from phasekit.thermo import tempfn  # noqa: E402
 from phasekit.thermo.database import Database  # noqa: E402
 
-
-def terms_for(n: int) -> tuple:
-    if n >= 5:
-        return ("a0", "a3", "a4")
-    if n >= 3:
-        return ("a0", "a3")
-    if n == 2:
-        return ("a0", "a3")
-    return ("a0",)
+DATA = ROOT / "data"
+R = 8.314462618  # J/(mol K), CODATA 2018 (exact in the 2019 SI)
+REF = "data/reference/binary_solubility.csv"
 
 
-def main(dry_run: bool = False) -> None:
-    model = Model(Database(ROOT / "data"))
-    ref = read_csv("reference/binary_solubility.csv", ROOT / "data")
-    fit = ref[ref["role"] == "fit"]
-    lines = (ROOT / "data" / "solids.csv").read_text().splitlines()
-    header = [ln for ln in lines if ln.startswith("#")]
-    table = read_csv("solids.csv", ROOT / "data")
-    for solid, rows in fit.groupby("solid", sort=False):
-        terms = terms_for(len(rows))
-        res = fit_ln_k(solid, rows[["salt", "temp_c", "mass_percent"]], terms=terms, model=model)
-        sel = table["solid"] == solid
-        for c in ("a0", "a1", "a2", "a3", "a4"):
-            table.loc[sel, c] = round(res.parameters.get(c, 0.0), 8)
-        lo, hi = rows["temp_c"].min(), rows["temp_c"].max()
-        table.loc[sel, "t_min_c"] = lo
-        table.loc[sel, "t_max_c"] = hi
-        sd = ", ".join(f"{k} ± {v:.2g}" for k, v in res.stderr.items() if v == v)
-        table.loc[sel, "source"] = (
-            f"fitted in this project to {len(rows)} solubilities {lo:g}–{hi:g} °C of data/reference/"
-            f"binary_solubility.csv (role=fit; {rows['source'].iloc[0]}); rms {res.rms:.2g} in ln K"
-            + (f"; {sd}" if sd else "")
-        )
-        print(f"{solid:<14s} n={len(rows):2d} terms={terms} rms={res.rms:.3g} {res.parameters}")
+# ----------------------------------------------------------------------------- inputs
+def load_inputs(data_dir: Path = DATA):
+    """(model, fit rows, thermochemistry table, calibration settings) from the data files."""
+    model = Model(Database(data_dir))
+    ref = read_csv("reference/binary_solubility.csv", data_dir)
+    thermo = read_csv("reference/thermochemistry.csv", data_dir).set_index("name")
+    with open(data_dir / "reference" / "calibration.toml", "rb") as fh:
+        settings = tomllib.load(fh)["salts"]
+    return model, ref[ref["role"] == "fit"].reset_index(drop=True), thermo, settings
+
+
+def fit_rows_of(ref_fit: pd.DataFrame, salt: str) -> pd.DataFrame:
+    """The fit rows of one salt as a table for :func:`phasekit.fitting.fit_parameters`."""
+    rows = ref_fit[ref_fit["salt"] == salt]
+    return pd.DataFrame({"salt": rows["salt"].to_numpy(), "temp_c": rows["temp_c"].to_numpy(float),
+                         "mass_percent": rows["mass_percent"].to_numpy(float),
+                         "solids": rows["solid"].to_numpy()})
+
+
+def solution_properties(model, solid: str, thermo: pd.DataFrame) -> tuple[float, float]:
+    """(ΔH°sol in kJ/mol, ΔCp°sol in J/(mol K)) of dissolving ``solid`` to ions and liquid water."""
+    st = model.solid_stoichiometry(solid)
+    dh = -thermo.loc[solid, "dfh_kj_mol"]
+    dcp = -thermo.loc[solid, "cp_j_mol_k"]
+    for sp, n in st.items():
+        dh += n * thermo.loc[sp, "dfh_kj_mol"]
+        dcp += n * thermo.loc[sp, "cp_j_mol_k"]
+    return float(dh), float(dcp)
+
+
+def van_t_hoff_terms(dh_kj: float, dcp: float) -> tuple[float, float]:
+    """(a3, a4) of ln K(T) for constant ΔH° (kJ/mol, at Tr) and ΔCp° (J/(mol K))."""
+    return -dh_kj * 1000.0 / R + dcp * tempfn.TR / R, dcp / R
+
+
+# ----------------------------------------------------------------------------- fit
+def _pair(model, salt):
+    from phasekit.chemistry.salts import parse_salt
+
+    ions = parse_salt(salt)
+    cat = next(s for s in ions if model.db.charges[s] > 0)
+    an = next(s for s in ions if model.db.charges[s] < 0)
+    return cat, an
+
+
+def calibrate_salt(model, salt: str, cfg: dict, rows: pd.DataFrame, thermo: pd.DataFrame):
+    """Fit one salt. Returns (FitResult, specs, {solid: (dH, dCp)})."""
+    cat, an = _pair(model, salt)
+    solids = model.db.solids.copy()
+    props = {}
+    for s in cfg["solids"]:
+        dh, dcp = solution_properties(model, s, thermo)
+        a3, a4 = van_t_hoff_terms(dh, dcp)
+        sel = solids["solid"] == s
+        solids.loc[sel, ["a1", "a2", "a3", "a4"]] = [0.0, 0.0, a3, a4]
+        props[s] = (dh, dcp)
+    pitzer = [(p.split(":")[0], cat, an, p.split(":")[1]) for p in cfg["fit"] if not p.startswith("lnk:")]
+    binary = model.db.binary.copy()
+    zeroed = [(z.split(":")[0], cat, an, z.split(":")[1]) for z in cfg.get("zero", [])]
+    for kind, c, a, coef in pitzer + zeroed:
+        cols = ["a3", "a4"] if coef == "cp" else [coef]
+        binary.loc[(binary["cation"] == c) & (binary["anion"] == a) & (binary["parameter"] == kind), cols] = 0.0
+    start_model = Model(model.db.with_tables(solids=solids, binary=binary))
+    # starting a0 of each solid: mean of ln IAP - (a3, a4 part) over its rows
+    m = data_molalities(start_model, rows)
+    x0 = []
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", ValidityWarning)
+        for s in cfg["solids"]:
+            k = start_model.solids.index[s]
+            vals = []
+            for r in np.flatnonzero(rows["solids"].to_numpy() == s):
+                t = float(rows["temp_c"].iloc[r])
+                ln_g, _, ln_aw, _, _ = start_model.compute(m[r:r + 1], t)
+                iap = start_model.solids.ln_iap(m[r:r + 1], ln_g, ln_aw)[0, k]
+                vals.append(iap - (start_model.solids.ln_k(t)[k] - start_model.solids.coeffs[k, 0]))
+            x0.append(float(np.mean(vals)))
+    extra = [("lnk", s, p.split(":")[1]) for p in cfg["fit"] if p.startswith("lnk:") for s in cfg["solids"]]
+    specs = [("lnk", s, "a0") for s in cfg["solids"]] + extra + pitzer
+    x0 += [0.0] * len(extra) + [0.0] * len(pitzer)
+    # linearized residuals (ln IAP - ln K) / slope first, then the solved solubilities from there
+    pen = monotonic_penalty(salt, rows, start_model)
+    first = fit_parameters(specs, rows, model=start_model, residual="ln_m", start=x0, penalty=pen)
+    res = fit_parameters(specs, rows, model=start_model, residual="solubility",
+                         start=[first.parameters["/".join(sp)] for sp in specs], penalty=pen)
+    return res, specs, props
+
+
+def monotonic_penalty(salt: str, rows: pd.DataFrame, model, min_slope: float = 0.1):
+    """Penalty residuals that keep the single-salt solution physical between the fit rows.
+
+    Solubility rows only sample the activity on the saturation curve; a fit may then buy a good
+    match with parameters that make ln a± fall, or a_w rise, with molality at lower molality (seen
+    for KNO3 above 80 °C). On a grid of temperatures every 10 °C over the fit rows and molalities
+    up to 1.05 x the saturated molality (interpolated between fit rows), each step where
+    d ln a± / d ln m < ``min_slope`` or d ln a_w / d ln m > 0 adds its shortfall as a residual
+    (zero when the condition holds).
+    """
+    from phasekit.chemistry.salts import parse_salt
+
+    ions = parse_salt(salt)
+    vec = np.zeros(len(model.species))
+    for sp, n in ions.items():
+        vec[model.index[sp]] = n
+    msat = salt_molalities(model, rows)
+    order = np.argsort(rows["temp_c"].to_numpy())
+    t_rows, m_rows = rows["temp_c"].to_numpy(float)[order], msat[order]
+    temps = np.arange(t_rows.min(), t_rows.max() + 1e-9, 10.0)
+    grids = [np.geomspace(0.01, 1.05 * np.interp(t, t_rows, m_rows), 60) for t in temps]
+    ln_vec = np.log(np.where(vec > 0, vec, 1.0))
+
+    def penalty(mod):
+        out = []
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", ValidityWarning)
+            for t, ms in zip(temps, grids):
+                ln_g, _, ln_aw, _, _ = mod.compute(ms[:, None] * vec[None, :], float(t))
+                ln_a = (np.log(ms)[:, None] + ln_vec[None, :] + ln_g) @ vec / vec.sum()
+                dx = np.diff(np.log(ms))
+                out.append(np.minimum(0.0, np.diff(ln_a) / dx - min_slope))
+                out.append(np.minimum(0.0, -np.diff(ln_aw) / dx))
+        return np.concatenate(out)
+
+    return penalty
+
+
+def transitions_of(model, salt: str) -> pd.DataFrame:
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", ValidityWarning)
+        return pk.polytherm(salt, 0.0, 100.0, 1.0, model=model)[1]
+
+
+def activity_sanity(model, salt: str, m_sat: float, temp_c: float) -> list[str]:
+    """Problems of the single-salt activity up to saturation: ln a± or a_w not monotonic in m."""
+    from phasekit.chemistry.salts import parse_salt
+
+    ions = parse_salt(salt)
+    vec = np.zeros(len(model.species))
+    for s, n in ions.items():
+        vec[model.index[s]] = n
+    ms = np.geomspace(1e-3, m_sat, 200)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", ValidityWarning)
+        ln_g, _, ln_aw, _, _ = model.compute(ms[:, None] * vec[None, :], temp_c)
+    ln_a = (np.log(ms)[:, None] + np.log(np.where(vec > 0, vec, 1.0))[None, :] + ln_g) @ vec
+    out = []
+    if np.any(np.diff(ln_a) <= 0):
+        out.append(f"{salt} {temp_c:g} °C: ln a± not increasing below saturation ({m_sat:.3g} mol/kg)")
+    if np.any(np.diff(ln_aw) >= 0):
+        out.append(f"{salt} {temp_c:g} °C: a_w not decreasing below saturation ({m_sat:.3g} mol/kg)")
+    return out
+
+
+# ----------------------------------------------------------------------------- writing
+def _fmt(v: float) -> str:
+    if v == 0:
+        return "0"
+    return f"{v:.9g}"
+
+
+def rewrite_csv(path: Path, key_cols: tuple, updates: dict) -> int:
+    """Rewrite the rows of a CSV of the database whose key is in ``updates`` (other lines untouched).
+
+    ``updates`` maps a tuple of the key columns' values to {column: new value}. Returns the number of
+    rows changed.
+    """
+    lines = path.read_text().splitlines()
+    header = None
+    out, n = [], 0
+    for ln in lines:
+        if ln.startswith("#") or not ln.strip():
+            out.append(ln)
+            continue
+        if header is None:
+            header = next(csv.reader([ln]))
+            out.append(ln)
+            continue
+        row = next(csv.reader([ln]))
+        rec = dict(zip(header, row))
+        key = tuple(rec[c] for c in key_cols)
+        if key in updates:
+            for c, v in updates[key].items():
+                rec[c] = _fmt(v) if isinstance(v, float) else str(v)
+            buf = io.StringIO()
+            csv.writer(buf, lineterminator="").writerow([rec[c] for c in header])
+            new = buf.getvalue()
+            n += new != ln
+            out.append(new)
+        else:
+            out.append(ln)
+    path.write_text("\n".join(out) + "\n")
+    return n
+
+
+def _a0_part(source: str) -> str:
+    first = source.split(";")[0].strip()
+    return first if first.startswith("a0 ") else "a0 " + first
+
+
+def salt_molalities(model, rows):
+    m = data_molalities(model, rows)
+    cat = _pair(model, rows["salt"].iloc[0])[0]
+    from phasekit.chemistry.salts import parse_salt
+
+    return m[:, model.index[cat]] / parse_salt(rows["salt"].iloc[0])[cat]
+
+
+def main(dry_run: bool = False, data_dir: Path = DATA) -> dict:
+    model, ref_fit, thermo, settings = load_inputs(data_dir)
+    report = {}
+    solid_updates, binary_updates = {}, {}
+    problems = []
+    for salt, cfg in settings.items():
+        rows = fit_rows_of(ref_fit, salt)
+        res, specs, props = calibrate_salt(model, salt, cfg, rows, thermo)
+        model = res.model
+        msat = salt_molalities(model, rows)
+        report[salt] = {"result": res, "rows": rows, "props": props}
+        print(f"\n{salt}: {len(rows)} fit rows, {len(specs)} fitted, rms {res.rms:.2g} in ln m")
+        for name, v in res.parameters.items():
+            print(f"   {name:<28s} {v:+.6g} ± {res.stderr[name]:.2g}")
+        for (_, r), e in zip(rows.iterrows(), res.residuals):
+            print(f"   fit {r['solids']:<12s} {r['temp_c']:5.0f} °C  {r['mass_percent']:7.3f} %  "
+                  f"m {msat[_]:7.3f}  residual ln m {e:+.4f}")
+        cat, an = _pair(model, salt)
+        tmin = float(min(rows["temp_c"].min(), 25.0))
+        tmax = float(max(rows["temp_c"].max(), 25.0))
+        # solids
+        trans = transitions_of(model, salt) if len(cfg["solids"]) > 1 else pd.DataFrame()
+        for s in cfg["solids"]:
+            sr = rows[rows["solids"] == s]
+            # the data range, widened to 25 °C (where dH and dCp were measured) and to the transitions
+            lo, hi = min(float(sr["temp_c"].min()), 25.0), max(float(sr["temp_c"].max()), 25.0)
+            for tr in trans.itertuples():
+                if tr.solid_below == s:
+                    hi = max(hi, float(math.ceil(tr.temp_c)))
+                if tr.solid_above == s:
+                    lo = min(lo, float(math.floor(tr.temp_c)))
+            k = model.solids.index[s]
+            co = model.solids.coeffs[k]
+            dh, dcp = props[s]
+            se = res.stderr[f"lnk/{s}/a0"]
+            others = [n for n in cfg["solids"] if n != s]
+            src = (f"a0 fitted in this project to {len(sr)} solubilities {sr['temp_c'].min():g}–{sr['temp_c'].max():g} °C "
+                   f"of {REF} (role=fit; CRC Handbook, from memory)"
+                   + (f" together with {', '.join(others)}" if others else "")
+                   + (f" and the {cat}-{an} Pitzer temperature coefficients" if cfg["fit"] else "")
+                   + f", a0 ± {se:.2g}; a3, a4 from dH_sol {dh:.2f} kJ/mol and dCp_sol {dcp:.0f} J/(mol K) "
+                   "(van 't Hoff, constant dCp) of data/reference/thermochemistry.csv (NBS82, from memory)")
+            solid_updates[(s,)] = {"a0": float(co[0]), "a1": 0.0, "a2": 0.0, "a3": float(co[3]), "a4": float(co[4]),
+                                   "t_min_c": _fmt(lo), "t_max_c": _fmt(hi), "source": src}
+        # Pitzer rows of the pair
+        fitted = {(sp[0], sp[3]): res.parameters["/".join(sp)] for sp in specs if sp[0] != "lnk"}
+        if fitted:
+            tab = model.db.binary
+            pair = tab[(tab["cation"] == cat) & (tab["anion"] == an)]
+            m_max = max(float(pair["m_max"].max()), float(np.max(msat)))
+            for row in pair.itertuples():
+                if row.parameter in ("alpha1", "alpha2"):
+                    continue
+                mine = {c: v for (p, c), v in fitted.items() if p == row.parameter}
+                upd = {"t_min_c": _fmt(tmin), "t_max_c": _fmt(tmax), "m_max": f"{m_max:.3g}"}
+                parts = [_a0_part(row.source)]
+                if mine:
+                    for c, v in mine.items():
+                        if c == "cp":  # c [Tr (1/T - 1/Tr) + ln(T/Tr)]
+                            upd["a3"], upd["a4"] = v * tempfn.TR, v
+                        else:
+                            upd[c] = v
+                    txt = ", ".join(f"{c} {v:+.4g} ± {res.stderr['/'.join((row.parameter, cat, an, c))]:.2g}"
+                                    for c, v in mine.items())
+                    parts.append(f"{'/'.join(mine)} fitted in this project to the solubility of {salt} "
+                                 f"{rows['temp_c'].min():g}–{rows['temp_c'].max():g} °C ({REF} role=fit, "
+                                 f"{len(rows)} rows, {np.min(msat):.2g}–{np.max(msat):.2g} mol/kg, along the "
+                                 f"saturation curve only) with ln K from NBS82 dH and dCp: {txt} (choice: {cfg['why']})")
+                    for c in ("a1", "a2"):
+                        if c not in mine and getattr(row, c) != 0:  # kept, e.g. a calorimetric a1
+                            parts.append(f"{c} kept as in the previous data file (not refitted)")
+                elif row.parameter in [z.split(":")[0] for z in cfg.get("zero", [])]:
+                    parts.append("temperature coefficients set to zero by the calibration (a previous value "
+                                 "recalled with low confidence was dropped; the saturated solutions do not "
+                                 "determine it)")
+                else:
+                    tail = "; ".join(x.strip() for x in row.source.split(";")[1:])
+                    if row.a1 != 0 or row.a2 != 0:
+                        parts.append(tail if "not refitted" in tail else
+                                     f"{tail}, not refitted (the saturated solutions do not constrain it)")
+                    else:
+                        parts.append("no temperature dependence: held at the 25 °C value (the saturated "
+                                     "solutions do not constrain it)")
+                upd["source"] = "; ".join(parts)
+                binary_updates[(cat, an, row.parameter)] = upd
+        # sanity of the activity up to saturation, with the solids' new validity ranges
+        sol_tab = model.db.solids.copy()
+        for (name,), upd in solid_updates.items():
+            sol_tab.loc[sol_tab["solid"] == name, ["t_min_c", "t_max_c"]] = [float(upd["t_min_c"]), float(upd["t_max_c"])]
+        model = Model(model.db.with_tables(solids=sol_tab))
+        lo_s = min(float(solid_updates[(s,)]["t_min_c"]) for s in cfg["solids"])
+        hi_s = max(float(solid_updates[(s,)]["t_max_c"]) for s in cfg["solids"])
+        line = []
+        for t in sorted(set(np.arange(lo_s, hi_s + 0.1, 10.0).tolist() + [hi_s])):
+            try:
+                with warnings.catch_warnings():
+                    warnings.simplefilter("ignore", ValidityWarning)
+                    r = pk.solubility(salt, float(t), model=model)
+            except Exception as exc:  # noqa: BLE001 — reported below
+                problems.append(f"{salt} {t:g} °C: no solubility ({exc})")
+                continue
+            problems += activity_sanity(model, salt, r.molality, float(t))
+            line.append(f"{t:g}:{r.water_activity:.3f}")
+        print("   water activity at saturation (°C:a_w)", " ".join(line))
+        if len(trans):
+            for tr in trans.itertuples():
+                print(f"   transition {tr.solid_below} -> {tr.solid_above} at {tr.temp_c:.2f} °C, "
+                      f"{tr.molality:.3f} mol/kg")
+    print("\nactivity sanity:", "; ".join(problems) if problems else "ln a± increasing and a_w decreasing up to "
+          "saturation for every calibrated salt, every 10 °C of its solids' range")
     if not dry_run:
-        with open(ROOT / "data" / "solids.csv", "w") as fh:
-            fh.write("\n".join(header) + "\n")
-            table.to_csv(fh, index=False)
+        n1 = rewrite_csv(data_dir / "solids.csv", ("solid",), solid_updates)
+        n2 = rewrite_csv(data_dir / "pitzer_binary.csv", ("cation", "anion", "parameter"), binary_updates)
+        print(f"wrote data/solids.csv ({n1} rows changed) and data/pitzer_binary.csv ({n2} rows changed)")
+    return report
 
 
 if __name__ == "__main__":

@@ -221,11 +221,18 @@ class _Path:
         if best is None:
             return None, None, None, []
         ur, ks = best
-        sol, t = self._fixed(seg, ur, base, act, st0)
+        # at a disappearance the leaving solid's amount is zero: solve without it, so that the
+        # state at the event closes its mass balance exactly (no clipping of a tiny remainder)
+        leaving = {k for k, kind in ks if kind == "disappears"}
+        act_at = tuple(k for k in act if k not in leaving)
+        sol, t = self._fixed(seg, ur, base, act_at, st0)
+        if sol is None:
+            act_at = act
+            sol, t = self._fixed(seg, ur, base, act, st0)
         from phasekit.equilibrium.solver import EquilibriumState
 
         mm, w, n, it, rb, ra = sol
-        st = EquilibriumState(mm, w, n, act, it, 0, rb, ra, _si(m, mm, t))
+        st = EquilibriumState(mm, w, n, act_at, it, 0, rb, ra, _si(m, mm, t))
         return ur, st, t, ks
 
 
