@@ -35,7 +35,12 @@ def states(si) -> np.ndarray:
 def saturation_indices(model, m: np.ndarray, temp_c: float) -> np.ndarray:
     """SI (N, n_solids) for composition rows ``m`` (-inf where a solid's ion is absent)."""
     ln_g, _, ln_aw, _, _ = model.compute(m, temp_c)
-    return (model.solids.ln_iap(m, ln_g, ln_aw) - model.solids.ln_k(temp_c)[None, :]) / LN10
+    si = (model.solids.ln_iap(m, ln_g, ln_aw) - model.solids.ln_k(temp_c)[None, :]) / LN10
+    # ice has no saturation index in a warm brine (its ln K is not extrapolated above its range)
+    warm = ~model.solids.has_ions & (temp_c > model.solids.t_range[:, 1] + 0.5)
+    if warm.any():
+        si[:, warm] = -np.inf
+    return si
 
 
 def _amount_to_saturation(model, m0: np.ndarray, temp_c: float, si0: np.ndarray) -> np.ndarray:

@@ -220,6 +220,9 @@ def solve(model, b, water, temp_c, initial_active=(), candidates=None, m0=None, 
     absent = np.ones(len(b), dtype=bool)
     absent[pres] = False
     possible = np.flatnonzero(~(nu_all[:, absent] > 0).any(axis=1))
+    # ice only where it can exist: its ln K (ice-point depression) is not extrapolated to warm brines
+    possible = np.array([k for k in possible if model.solids.has_ions[k]
+                         or temp_c <= model.solids.t_range[k, 1] + 0.5], dtype=int)
     if candidates is not None:
         possible = np.array([k for k in possible if k in set(candidates)], dtype=int)
     cand = set(possible.tolist())
