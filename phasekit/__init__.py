@@ -1,6 +1,7 @@
 """phasekit: solid–liquid equilibria of salt brines with the Pitzer model."""
 
 from phasekit.chemistry.brine import Brine
+from phasekit.diagrams import isotherm, read_diagram, reciprocal_isotherm, seawater_isotherm, ternary_polytherm
 from phasekit.equilibrium.solubility import polytherm, solubility
 from phasekit.errors import ConvergenceError, InputError, PhasekitError, RangeError, ValidityWarning
 from phasekit.model import Model, default_model, load_model
@@ -28,4 +29,9 @@ __all__ = [
     "programme",
     "polytherm",
     "solubility",
+    "isotherm",
+    "read_diagram",
+    "reciprocal_isotherm",
+    "seawater_isotherm",
+    "ternary_polytherm",
 ]
