@@ -1,58 +1,60 @@
-"""The phasekit Dash application.
+"""The phasekit web app (Dash): interactive phase diagrams and crystallization paths.
 
-This first version shows the model's water activity and osmotic coefficient for a
-brine typed by the user; the diagram, path and pond views come with later work.
-It holds no thermodynamics: every number comes from the phasekit library.
+It calls the library for every number and holds no thermodynamics of its own. Start it with
+``phasekit app`` (loopback, port 8050) or :func:`run`.
 """
 
 from __future__ import annotations
 
-from dash import Dash, Input, Output, State, dcc, html
+import time
+import warnings
 
-import phasekit as pk
-from phasekit.errors import PhasekitError
+from dash import Dash
 
-CAUTION = (
-    "Estimates from a thermodynamic model: confirm them by laboratory tests. Hot brines and "
-    "crystallizers, pond dikes and brine discharge are governed by local codes and licensed "
-    "engineering practice."
+from webapp import (
+    brine_view,
+    diagram_view,
+    export,
+    layout,
+    path_view,
+    polytherm_view,
+    pond_view,
+    saturation_view,
+    session_view,
 )
+from webapp.uploads import MAX_UPLOAD_BYTES
 
 
 def create_app() -> Dash:
-    app = Dash(__name__, title="phasekit")
-    app.layout = html.Div(
-        [
-            html.H1("phasekit — brine activity"),
-            html.Label("Temperature (°C)"),
-            dcc.Input(id="temp", type="text", value="25"),
-            html.Label("Brine, mol per kg water (species=value, comma separated)"),
-            dcc.Input(id="brine", type="text", value="Na=6, Cl=6", style={"width": "30em"}),
-            html.Button("Compute", id="go"),
-            html.Div(id="result"),
-            html.Footer(CAUTION, id="caution"),
-        ]
-    )
-
-    @app.callback(Output("result", "children"), Input("go", "n_clicks"), State("temp", "value"),
-                  State("brine", "value"))
-    def _compute(_, temp, text):
-        try:
-            t = float(temp)
-            comp = {}
-            for part in (text or "").split(","):
-                if part.strip():
-                    k, _, v = part.partition("=")
-                    comp[k.strip()] = float(v)
-            r = pk.default_model().activity(comp, t)
-        except (PhasekitError, ValueError) as exc:
-            return html.Div(str(exc), className="error")
-        return html.Div(f"water activity {r.water_activity:.4f}, osmotic coefficient {r.osmotic:.4f}, "
-                        f"ionic strength {r.ionic_strength:.3f} mol/kg")
-
+    """The Dash application (not yet serving)."""
+    app = Dash(__name__, title="phasekit — brine workbench", update_title=None, suppress_callback_exceptions=False)
+    # uploads are checked in the browser (2 MB); this refuses anything far larger at the door
+    app.server.config["MAX_CONTENT_LENGTH"] = 4 * MAX_UPLOAD_BYTES
+    app.layout = layout.build
+    for view in (brine_view, diagram_view, saturation_view, path_view, polytherm_view, pond_view, session_view,
+                 export):
+        view.register(app)
     return app
 
 
+def warm_up() -> float:
+    """Compile the model's kernels before the first request (a path on the demo brine); seconds taken."""
+    import phasekit as pk
+    from webapp.demo import demo_session
+
+    t0 = time.perf_counter()
+    b = demo_session()["brine"]
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        raw, brine = brine_view.build_brine(b["rows"], b["units"], b["density"], b["balance_on"])
+        pk.default_model().saturation(brine, 25.0)
+        path_view.run_path(brine.molalities, "evaporation", "fractional", 25.0)
+    return time.perf_counter() - t0
+
+
 def run(host: str = "127.0.0.1", port: int = 8050, debug: bool = False) -> None:
-    """Serve the app (loopback by default)."""
+    """Serve the app (loopback by default: pass ``host`` to serve on another address)."""
+    print("phasekit app: preparing the model ...", flush=True)
+    warm_up()
+    print(f"phasekit app: serving on http://{host}:{port}/ (Ctrl+C stops it)", flush=True)
     create_app().run(host=host, port=port, debug=debug)

@@ -1,43 +1,136 @@
-"""Entry point of the ``phasekit`` command."""
+"""Entry point of the ``phasekit`` command.
+
+Each group of subcommands lives in its own module (``cmd_*.py``) with a ``register(sub)``
+function; a subcommand returns a :class:`~phasekit.cli.common.Report` (written by
+:func:`~phasekit.cli.common.emit`) or, for ``batch`` and ``app``, an exit code. Errors the user
+can fix print one line, ``phasekit <command>: error: <message>``, and give a non-zero exit code
+(see :data:`~phasekit.cli.common.EXIT_CODES_TEXT`); no traceback unless PHASEKIT_DEBUG=1.
+"""
 
 from __future__ import annotations
 
 import argparse
+import os
+import re
 import sys
+import textwrap
+import warnings
 
 from phasekit import __version__
+from phasekit.cli import common as c
 
-
-def _cmd_app(args) -> int:
-    from webapp.app import run
-
-    run(host=args.host, port=args.port)
-    return 0
+_GROUPS = ("cmd_solubility", "cmd_brine", "cmd_paths", "cmd_diagrams", "cmd_fit", "cmd_batch", "cmd_app")
+#: order of the subcommands in --help
+ORDER = ("solubility", "polytherm", "saturation", "equilibrate", "isotherm", "evaporate", "cool", "mix", "ponds",
+         "fit", "batch", "app")
+#: warnings of third-party packages that say nothing to a user of phasekit (only warnings raised
+#: from phasekit's own code are shown; these are dropped even then)
+_NOISE = ("Using extrapolated values",)
+_PACKAGE_DIR = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
 
 
 def build_parser() -> argparse.ArgumentParser:
+    import importlib
+
     parser = argparse.ArgumentParser(
         prog="phasekit",
-        description="Solid–liquid equilibria of salt brines with the Pitzer model.",
-        epilog="Predictions are estimates to be confirmed by laboratory tests.",
+        description=textwrap.fill("Solid–liquid equilibria of salt brines with the Pitzer model: solubilities, "
+                                  "saturation states, equilibria, phase diagrams, evaporation and cooling paths, "
+                                  "pond trains, fits and batch runs.", 100),
+        epilog="Run 'phasekit COMMAND --help' for the options and an example of each command.\n"
+               "Temperatures are in °C; the units of an analysis are always named (--units).\n"
+               "Predictions are estimates to be confirmed by laboratory tests.\n\n" + c.exit_codes_text(),
+        formatter_class=c.HelpFormatter,
     )
     parser.add_argument("--version", action="version", version=f"phasekit {__version__}")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
-    app = sub.add_parser("app", help="serve the web app", description="Serve the phasekit web app.",
-                         epilog="example: phasekit app --port 8050")
-    app.add_argument("--host", default="127.0.0.1", help="address to bind (default 127.0.0.1, loopback only)")
-    app.add_argument("--port", type=int, default=8050, help="port (default 8050)")
-    app.set_defaults(func=_cmd_app)
+    for name in _GROUPS:
+        importlib.import_module(f"phasekit.cli.{name}").register(sub)
+    # list the subcommands in a reading order
+    actions = {a.dest: a for a in sub._choices_actions}
+    sub._choices_actions[:] = [actions[n] for n in ORDER if n in actions] + \
+        [a for n, a in actions.items() if n not in ORDER]
     return parser
 
 
+def _say(command: str, kind: str, message: str) -> None:
+    text = " ".join(str(message).split())
+    print(f"phasekit {command}: {kind}: {text}", file=sys.stderr)
+
+
+_NUMBER = re.compile(r"[-+]?\d+(?:\.\d+)?(?:e[-+]?\d+)?")
+
+
+def _warnings_out(command: str, caught, extra) -> None:
+    """Print each warning once; warnings that differ only in their numbers (one per step of a path)
+    are shown once with a count."""
+    shapes: dict = {}
+    ours = [str(w.message) for w in caught if str(w.filename).startswith(_PACKAGE_DIR)]
+    for text in ours + [str(x) for x in extra]:
+        if any(n in text for n in _NOISE):
+            continue
+        key = _NUMBER.sub("#", text.split(" above the highest in the data of ")[0])
+        first, texts = shapes.setdefault(key, (text, set()))
+        texts.add(text)
+    for first, texts in shapes.values():
+        more = len(texts) - 1
+        _say(command, "warning", first + (f" (and {more} similar warning{'s' if more > 1 else ''})" if more else ""))
+
+
 def main(argv: list[str] | None = None) -> int:
+    """Run the ``phasekit`` command; returns its exit code."""
+    from phasekit.errors import ConvergenceError, PhasekitError
+
     parser = build_parser()
     args = parser.parse_args(argv)
     if args.command is None:
         parser.print_help()
-        return 0
-    return args.func(args)
+        return c.EXIT_OK
+    args.notes = []
+    command = args.command
+    debug = os.environ.get("PHASEKIT_DEBUG", "") not in ("", "0")
+    caught: list = []
+    report = None
+    try:
+        with warnings.catch_warnings(record=True) as caught:
+            warnings.simplefilter("always")
+            c.check_output_path(args)
+            if getattr(args, "plot", None):
+                c.check_plot_path(args.plot)
+            result = args.func(args)
+            if getattr(args, "returns_code", False):
+                code = int(result)
+            else:
+                report = result
+                report.warnings = list(dict.fromkeys(list(args.notes) + list(report.warnings)))
+                c.emit(report, args)
+                code = c.EXIT_OK
+    except ConvergenceError as err:
+        code = c.EXIT_CONVERGENCE
+        _warnings_out(command, caught, args.notes)
+        _say(command, "convergence error", err)
+        return code
+    except PhasekitError as err:
+        _warnings_out(command, caught, args.notes)
+        _say(command, "error", err)
+        return c.EXIT_INPUT
+    except c.Unavailable as err:
+        _say(command, "not available", err)
+        return c.EXIT_UNAVAILABLE
+    except KeyboardInterrupt:
+        _say(command, "error", "interrupted")
+        return 130
+    except BrokenPipeError:
+        return c.EXIT_OK
+    except Exception as err:  # a bug: one line, the traceback on request
+        if debug:
+            raise
+        _say(command, "internal error", f"{type(err).__name__}: {err} (set PHASEKIT_DEBUG=1 for the traceback, and "
+                                        "please report it with the command line)")
+        return c.EXIT_INTERNAL
+    extra = list(report.warnings) if report is not None else list(args.notes)
+    _warnings_out(command, caught, extra)
+    return code
 
 
 if __name__ == "__main__":

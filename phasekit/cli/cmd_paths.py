@@ -1,0 +1,199 @@
+"""Subcommands ``evaporate``, ``cool``, ``mix`` and ``ponds`` (process paths)."""
+
+from __future__ import annotations
+
+import pandas as pd
+
+from phasekit.cli import common as c
+from phasekit.errors import InputError
+
+PATH_TABLES = ("steps", "events", "summary", "precipitated")
+
+
+def _path_report(res, scalars: dict, x: str, title: str) -> c.Report:
+    first = res.first_solid
+    scalars = dict(scalars)
+    scalars.update({"mode": res.mode, "end_point": res.end_point,
+                    "first_solid": first["solid"] if first else None,
+                    "first_solid_concentration_factor": first["concentration_factor"] if first else None,
+                    "first_solid_temp_c": first["temp_c"] if first else None})
+    prec = res.precipitated.add_prefix("mol_")
+    steps = pd.concat([res.steps, prec], axis=1)
+    rep = c.Report(scalars=scalars, tables={"steps": steps, "events": res.events, "summary": res.summary(),
+                                            "precipitated": res.precipitated},
+                   main="steps", warnings=list(res.warnings), show=["events", "summary"])
+
+    def draw(path):
+        from phasekit.cli.plots import path_figure
+
+        path_figure(res, x, path, title)
+
+    rep.draw = draw
+    return rep
+
+
+def _evaporate(args) -> c.Report:
+    import phasekit as pk
+
+    (brine,) = c.read_brines(args)
+    res = pk.evaporate(brine, temp_c=args.temp, mode=args.mode, water_removed=args.water_removed,
+                       concentration_factor=args.cf)
+    return _path_report(res, {"temp_c": args.temp}, "concentration_factor",
+                        f"Isothermal evaporation at {args.temp:g} °C ({args.mode})")
+
+
+def _cool(args) -> c.Report:
+    import phasekit as pk
+
+    (brine,) = c.read_brines(args)
+    res = pk.cool(brine, start_c=args.start, end_c=args.end, mode=args.mode)
+    verb = "Cooling" if args.end < args.start else "Heating"
+    return _path_report(res, {"start_c": args.start, "end_c": args.end}, "temp_c",
+                        f"{verb} from {args.start:g} to {args.end:g} °C ({args.mode})")
+
+
+def _mix(args) -> c.Report:
+    import phasekit as pk
+    from phasekit.cli.cmd_brine import equilibrium_report
+
+    a, b = c.read_brines(args, count=2)
+    model = pk.default_model()
+    res = pk.mix(a, b, ratio=args.ratio, temp_c=args.temp)
+    return equilibrium_report(model, res, {"temp_c": args.temp, "mass_fraction_a": args.ratio},
+                              extra={"mixture": c.brine_table(res.mixture)})
+
+
+# ------------------------------------------------------------------------------ ponds
+_POND_KEYS = {"name": "name", "temp": "temp_c", "temp_c": "temp_c", "water_removed": "water_removed",
+              "cf": "concentration_factor", "concentration_factor": "concentration_factor",
+              "until": "until_saturated", "until_saturated": "until_saturated", "mode": "mode"}
+_POND_EXAMPLE = "name=Heron 1;temp=30;cf=3.5"
+
+
+def _pond_value(key: str, value, field: str):
+    if key in ("temp_c", "water_removed", "concentration_factor"):
+        try:
+            return float(value)
+        except (TypeError, ValueError):
+            raise InputError(field, value, "a number") from None
+    if key == "until_saturated":
+        names = [s.strip() for s in str(value).split("+") if s.strip()]
+        return names[0] if len(names) == 1 else names
+    return str(value).strip()
+
+
+def parse_pond(text: str, i: int) -> dict:
+    """A pond mapping from "name=...;temp=...;cf=...|water_removed=...|until=solid[;mode=...]"."""
+    field = f"--pond {i + 1}"
+    out: dict = {}
+    for item in str(text).split(";"):
+        if not item.strip():
+            continue
+        key, eq, value = item.partition("=")
+        key = key.strip().lower()
+        if not eq or key not in _POND_KEYS:
+            raise InputError(field, item.strip(), f"KEY=VALUE items separated by ';' with keys name, temp, and one of "
+                                                  f"cf, water_removed, until (optionally mode), e.g. '{_POND_EXAMPLE}'")
+        out[_POND_KEYS[key]] = _pond_value(_POND_KEYS[key], value.strip(), f"{field} {key}")
+    for need in ("name", "temp_c"):
+        if need not in out:
+            raise InputError(field, text, f"a {need.replace('_c', '')} for the pond, e.g. '{_POND_EXAMPLE}'")
+    return out
+
+
+def read_ponds_file(path: str) -> list[dict]:
+    """Ponds from a CSV: columns name, temp_c, and one of water_removed, concentration_factor,
+    until_saturated (solids joined by '+'), optionally mode."""
+    from phasekit.batch.source import read_source
+
+    df = read_source(path)
+    unknown = [col for col in df.columns if col not in _POND_KEYS]
+    if unknown:
+        raise InputError("--ponds column", unknown[0], "name, temp_c, water_removed, concentration_factor, "
+                                                      "until_saturated, mode")
+    ponds = []
+    for i, row in enumerate(df.to_dict("records")):
+        p = {}
+        for k, v in row.items():
+            if v is None or (isinstance(v, float) and v != v) or (isinstance(v, str) and not v.strip()):
+                continue
+            p[_POND_KEYS[k]] = _pond_value(_POND_KEYS[k], v, f"--ponds row {i + 1} {k}")
+        for need in ("name", "temp_c"):
+            if need not in p:
+                raise InputError(f"--ponds row {i + 1}", need, "a name and a temp_c for every pond")
+        ponds.append(p)
+    return ponds
+
+
+def _ponds(args) -> c.Report:
+    import phasekit as pk
+
+    (brine,) = c.read_brines(args)
+    if bool(args.pond) == bool(args.ponds):
+        raise InputError("--pond", None, "the ponds: --pond '...' once per pond, or --ponds FILE.csv (not both)")
+    ponds = [parse_pond(t, i) for i, t in enumerate(args.pond)] if args.pond else read_ponds_file(args.ponds)
+    res = pk.pond_train(brine, [pk.Pond(**p) for p in ponds])
+    scalars = {"ponds": [p["name"] for p in ponds], "outflow_charge_balance_percent": res.outflow.charge_balance()}
+    return c.Report(scalars=scalars, tables={"ponds": res.ponds, "harvest": res.harvest,
+                                             "outflow": c.brine_table(res.outflow)}, main="ponds",
+                    warnings=[w for p in res.paths.values() for w in p.warnings])
+
+
+def register(sub) -> None:
+    brine_ex = "--brine Na=10780,K=399,Mg=1290,Ca=412,Cl=19350,SO4=2710 --units mg/kg"
+    p = c.add_parser(sub, "evaporate", "isothermal evaporation path",
+                     "Isothermal evaporation of a brine: the solids in the order they form, at which concentration "
+                     "factor, how much of each, and the brine left. Concentration factor = initial water / water now.",
+                     [f"phasekit evaporate {brine_ex} --temp 25 --plot evaporation.png",
+                      "phasekit evaporate --input ponds.csv --row Heron-2 --units g/L --temp 35 --mode equilibrium "
+                      "--format csv --table steps -o steps.csv"])
+    c.add_brine_options(p)
+    c.add_temp(p)
+    p.add_argument("--mode", choices=("fractional", "equilibrium"), default="fractional",
+                   help="fractional (solids harvested as they form, default) or equilibrium (they stay and react)")
+    p.add_argument("--water-removed", type=float, default=1.0, metavar="FRACTION",
+                   help="largest fraction of the initial water to evaporate (default 1: to the end point)")
+    p.add_argument("--cf", type=float, metavar="CF", help="stop at this concentration factor")
+    c.add_output_options(p, plot=True, tables=PATH_TABLES)
+    p.set_defaults(func=_evaporate)
+
+    p = c.add_parser(sub, "cool", "cooling (or heating) path at fixed water",
+                     "Cooling of a brine from --start to --end °C (heating when --end is higher), with the solids "
+                     "that form and the brine left.",
+                     ["phasekit cool --salts NaCl=10,KCl=25 --units mass% --start 90 --end 20 --plot cooling.svg",
+                      "phasekit cool --brine K=2.5,Na=3.0,Cl=5.5 --units mol/kg --start 80 --end 25 --format json"])
+    c.add_brine_options(p)
+    c.add_temp(p, None, "--start", "starting temperature, °C")
+    c.add_temp(p, None, "--end", "final temperature, °C")
+    p.add_argument("--mode", choices=("equilibrium", "fractional"), default="equilibrium",
+                   help="equilibrium (solids stay, default) or fractional (harvested as they form)")
+    c.add_output_options(p, plot=True, tables=PATH_TABLES)
+    p.set_defaults(func=_cool)
+
+    p = c.add_parser(sub, "mix", "mix two brines and equilibrate",
+                     "Mix brine A and brine B (give --brine, --salts or --row twice, A first) in the mass ratio "
+                     "--ratio (mass fraction of A) and equilibrate the mixture.",
+                     ["phasekit mix --brine Mg=1.8,K=0.4,Cl=4.0 --brine Na=5.0,Cl=5.0 --units mol/kg --ratio 0.3 "
+                      "--temp 25",
+                      "phasekit mix --input ponds.csv --row Heron-4 --row Inflow --units g/L --ratio 0.5"])
+    c.add_brine_options(p, many=True)
+    c.add_temp(p)
+    p.add_argument("--ratio", type=float, required=True, metavar="FRACTION",
+                   help="mass fraction of brine A in the mixture, 0..1")
+    c.add_output_options(p, tables=("solids", "mixture", "liquid", "saturation"))
+    p.set_defaults(func=_mix)
+
+    p = c.add_parser(sub, "ponds", "a train of evaporation ponds",
+                     "Run a brine through a train of ponds, each with a temperature and one end condition (a "
+                     "concentration factor, a fraction of its inflow's water, or until a solid saturates); give "
+                     "--pond once per pond, in order, or --ponds FILE.csv (columns name, temp_c, and one of "
+                     "concentration_factor, water_removed, until_saturated; optionally mode).",
+                     [f"phasekit ponds {brine_ex} --pond 'name=Heron 1;temp=30;cf=3.5' "
+                      "--pond 'name=Heron 2;temp=30;until=carnallite' --pond 'name=Heron 3;temp=30;water_removed=0.5'",
+                      f"phasekit ponds {brine_ex} --ponds train.csv --format xlsx -o harvest.xlsx"])
+    c.add_brine_options(p)
+    p.add_argument("--pond", action="append", metavar="SPEC",
+                   help="one pond: 'name=...;temp=°C;cf=...|water_removed=...|until=SOLID[+SOLID][;mode=...]'")
+    p.add_argument("--ponds", metavar="FILE", help="a CSV of ponds, one per row, in order")
+    c.add_output_options(p, tables=("ponds", "harvest", "outflow"))
+    p.set_defaults(func=_ponds)

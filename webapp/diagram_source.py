@@ -1,0 +1,55 @@
+"""Where the diagram view gets its diagrams and their figures: the library, once per
+(system, temperature) for the diagram and once per (system, temperature, coordinates, units)
+for its figure. Nothing is computed here.
+
+Library functions used (``phasekit.diagrams``, ``phasekit.plotting``): ``isotherm(salts, temp_c)``,
+``reciprocal_isotherm(temp_c)``, ``seawater_isotherm(temp_c)``; ``ternary_figure``,
+``rectangular_figure(result, units=...)``, ``jaenecke_figure``; the path projections
+``plotting.overlay.ternary_path`` and ``projection_path``. They are imported when first used:
+if one is missing, :class:`DiagramUnavailable` says so plainly and the view keeps working.
+"""
+
+from __future__ import annotations
+
+import importlib
+from functools import lru_cache
+
+from webapp.systems import get_system
+
+
+class DiagramUnavailable(Exception):
+    """The library does not provide this kind of diagram (yet)."""
+
+
+def library(module: str, name: str):
+    """``<module>.<name>`` of the library, or :class:`DiagramUnavailable`."""
+    try:
+        fn = getattr(importlib.import_module(module), name)
+    except (ImportError, AttributeError):
+        raise DiagramUnavailable(f"This diagram is not available yet: this version of the library has no "
+                                 f"{module}.{name}.") from None
+    return fn
+
+
+@lru_cache(maxsize=96)
+def diagram(system_key: str, temp_c: float):
+    """The library's diagram of a system at a temperature (cached; errors are not cached)."""
+    system = get_system(system_key)
+    if system.kind == "ternary":
+        return library("phasekit.diagrams", "isotherm")(list(system.salts), temp_c=temp_c)
+    name = "reciprocal_isotherm" if system.kind == "reciprocal" else "seawater_isotherm"
+    return library("phasekit.diagrams", name)(temp_c=temp_c)
+
+
+@lru_cache(maxsize=96)
+def base_figure(system_key: str, temp_c: float, coords: str, units: str) -> dict:
+    """The library's figure of the diagram, as a plotly dictionary (cached)."""
+    system = get_system(system_key)
+    result = diagram(system_key, temp_c)
+    if system.kind != "ternary":
+        fig = library("phasekit.plotting", "jaenecke_figure")(result)
+    elif coords == "triangular":
+        fig = library("phasekit.plotting", "ternary_figure")(result)
+    else:
+        fig = library("phasekit.plotting", "rectangular_figure")(result, units=units)
+    return fig.to_plotly_json()

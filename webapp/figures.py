@@ -1,0 +1,213 @@
+"""Figures of the app, as plain plotly figure dictionaries (fast to build and to send).
+
+Every number drawn comes from the library (diagrams, paths, polytherms, pond trains); these
+functions only place them.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+
+from phasekit.errors import PhasekitError
+from webapp import diagram_source
+from webapp.style import BRINE, GRID, INK, MUTED, PATH_END, axis, base_layout, solid_colour
+
+
+def _list(v):
+    return np.atleast_1d(np.asarray(v, dtype=float)).round(6).tolist()
+
+
+# ----------------------------------------------------------------------------- diagram
+UNIT_LABEL = {"mass_percent": "mass %", "g_per_100g_water": "g per 100 g water", "molality": "mol per kg water"}
+
+
+def overlay_coordinates(system, coords: str, units: str, df: pd.DataFrame) -> tuple[dict, list]:
+    """Plot coordinates of compositions (rows of molalities) on a diagram, by the library's projections,
+    and a hover text per row."""
+    import phasekit as pk
+
+    model = pk.default_model()
+    if system.kind == "ternary":
+        ternary_path = diagram_source.library("phasekit.plotting.overlay", "ternary_path")
+        c = ternary_path(model, tuple(system.salts), df)
+        a, b = system.salts
+        text = [f"{a}: {x:.2f} mass %<br>{b}: {y:.2f} mass %<br>water: {w:.2f} mass %"
+                for x, y, w in zip(c[f"{a}_mass_percent"], c[f"{b}_mass_percent"], c["water_mass_percent"])]
+        if coords == "triangular":
+            return {"a": _list(c["water_mass_percent"]), "b": _list(c[f"{a}_mass_percent"]),
+                    "c": _list(c[f"{b}_mass_percent"])}, text
+        return {"x": _list(c[f"{a}_{units}"]), "y": _list(c[f"{b}_{units}"])}, text
+    projection_path = diagram_source.library("phasekit.plotting.overlay", "projection_path")
+    x, y = projection_path(model, system.kind, df)
+    species = [s for s in df.columns if s in model.species]
+    text = ["<br>".join(f"{s}: {row[s]:.4g} mol/kg water" for s in species) for _, row in df.iterrows()]
+    return {"x": _list(x), "y": _list(y)}, text
+
+
+def _hover_curves(fig: dict, system, coords: str, units: str) -> None:
+    """Hover of the library's saturation curves: the saturated solid and the composition."""
+    for tr in fig.get("data", []):
+        name = str(tr.get("name", ""))
+        if ": saturation curve" not in name and ": metastable" not in name:
+            continue
+        solid = name.split(":")[0]
+        if system.kind == "ternary" and coords == "triangular":
+            a, b = system.salts
+            tr["hovertemplate"] = (f"<b>saturated with {solid}</b><br>{a}: %{{b:.2f}} mass %<br>{b}: %{{c:.2f}} "
+                                   "mass %<br>water: %{a:.2f} mass %<extra></extra>")
+        elif system.kind == "ternary":
+            a, b = system.salts
+            tr["hovertemplate"] = (f"<b>saturated with {solid}</b><br>{a}: %{{x:.3g}} {UNIT_LABEL[units]}<br>"
+                                   f"{b}: %{{y:.3g}} {UNIT_LABEL[units]}<extra></extra>")
+
+
+def _empty(system, coords: str, units: str, title: str) -> dict:
+    """Axes of the diagram without its curves (when the library has no diagram to give)."""
+    if system.kind == "ternary" and coords == "triangular":
+        a, b = system.salts
+        ax = {"linecolor": MUTED, "gridcolor": GRID}
+        return {"data": [], "layout": base_layout(title={"text": title}, ternary={
+            "sum": 100, "aaxis": {**ax, "title": {"text": "H2O (mass %)"}},
+            "baxis": {**ax, "title": {"text": f"{a} (mass %)"}}, "caxis": {**ax, "title": {"text": f"{b} (mass %)"}}})}
+    if system.kind == "ternary":
+        a, b = system.salts
+        return {"data": [], "layout": base_layout(title={"text": title}, xaxis=axis(f"{a} ({UNIT_LABEL[units]})"),
+                                                  yaxis=axis(f"{b} ({UNIT_LABEL[units]})"))}
+    return {"data": [], "layout": base_layout(title={"text": title}, xaxis=axis("", range=[-0.08, 1.08]),
+                                              yaxis=axis("", range=[-0.08, 1.08], scaleanchor="x"))}
+
+
+def diagram_figure(system, coords: str, units: str, base: dict | None, brine=None, path=None,
+                   title: str = "") -> tuple[dict, list]:
+    """The library's diagram figure with the brine (a star) and its path (line, phase changes as dots).
+
+    Parameters
+    ----------
+    base : dict or None
+        The library's figure (plotly dictionary); None draws empty axes.
+    brine : dict, optional
+        ``{"name", "molalities"}``.
+    path : dict, optional
+        ``{"steps": DataFrame of molalities, "events": DataFrame}``.
+
+    Returns
+    -------
+    (figure, notes)
+    """
+    notes: list[str] = []
+    if base is None:
+        fig = _empty(system, coords, units, title)
+    else:
+        fig = {"data": [dict(t) for t in base.get("data", [])], "layout": dict(base.get("layout", {}))}
+        _hover_curves(fig, system, coords, units)
+    kind = "scatterternary" if system.kind == "ternary" and coords == "triangular" else "scatter"
+    try:
+        if path is not None and len(path["steps"]):
+            xy, _ = overlay_coordinates(system, coords, units, path["steps"])
+            fig["data"].append({"type": kind, "mode": "lines", "name": "path of the brine", **xy,
+                                "line": {"color": BRINE, "width": 3}, "hoverinfo": "skip"})
+            ev = path["events"]
+            if len(ev):
+                exy, text = overlay_coordinates(system, coords, units, ev)
+                hover = [f"<b>{r['solid']} {r['event']}</b><br>concentration factor {r['concentration_factor']:.3g}, "
+                         f"{r['temp_c']:.1f} °C<br>{t}" for r, t in zip(ev.to_dict("records"), text)]
+                fig["data"].append({"type": kind, "mode": "markers", "name": "phase changes", **exy,
+                                    "hovertext": hover, "hoverinfo": "text",
+                                    "marker": {"size": 9, "color": PATH_END, "line": {"color": "white", "width": 1}}})
+        if brine is not None:
+            df = pd.DataFrame([brine["molalities"]])
+            bxy, text = overlay_coordinates(system, coords, units, df)
+            name = brine.get("name") or "brine"
+            fig["data"].append({"type": kind, "mode": "markers", "name": name, **bxy,
+                                "hovertext": [f"<b>{name}</b><br>{t}" for t in text], "hoverinfo": "text",
+                                "marker": {"symbol": "star", "size": 17, "color": BRINE,
+                                           "line": {"color": "white", "width": 1}}})
+    except diagram_source.DiagramUnavailable as exc:
+        notes.append(str(exc))
+    except PhasekitError as exc:
+        notes.append(f"The brine cannot be placed on this diagram: {exc}")
+    return fig, notes
+
+
+# ----------------------------------------------------------------------------- paths
+def sequence_figure(x, x_title: str, amounts: pd.DataFrame, events: pd.DataFrame, event_x, y_title: str,
+                    reverse_x: bool = False, title: str = "", log_x: bool = False, log_y: bool = False) -> dict:
+    """Mass of each solid along a path, with the phase changes marked."""
+    traces = []
+    for solid in amounts.columns:
+        traces.append({"type": "scatter", "mode": "lines", "name": solid, "x": _list(x),
+                       "y": _list(amounts[solid].to_numpy(float)), "line": {"color": solid_colour(solid), "width": 2.5},
+                       "hovertemplate": f"<b>{solid}</b><br>%{{x:.3g}}<br>%{{y:.4g}} {y_title}<extra></extra>"})
+    shapes, notes = [], []
+    for (_, ev), xe in zip(events.iterrows(), event_x):
+        if ev["event"] != "appears" or not np.isfinite(xe):
+            continue
+        shapes.append({"type": "line", "xref": "x", "yref": "paper", "x0": xe, "x1": xe, "y0": 0, "y1": 1,
+                       "line": {"color": solid_colour(ev["solid"]), "width": 1, "dash": "dot"}})
+        notes.append({"x": float(np.log10(xe)) if log_x else xe, "y": 1.0, "xref": "x", "yref": "paper",
+                      "text": ev["solid"], "showarrow": False, "textangle": -90, "xanchor": "right", "yanchor": "top",
+                      "font": {"size": 11, "color": MUTED}})
+    xa = axis(x_title)
+    if reverse_x:
+        xa["autorange"] = "reversed"
+    if log_x:
+        xa["type"] = "log"
+    ya = axis(y_title)
+    if log_y:
+        ya["type"] = "log"
+    return {"data": traces, "layout": base_layout(title={"text": title, "x": 0.01}, xaxis=xa, yaxis=ya,
+                                                  shapes=shapes, annotations=notes, hovermode="closest")}
+
+
+# ----------------------------------------------------------------------------- polytherms
+POLY_LABEL = {"mass_percent": "solubility (mass % of anhydrous salt)",
+              "grams_per_100g_water": "solubility (g anhydrous salt per 100 g water)",
+              "molality": "solubility (mol per kg water)"}
+
+
+def polytherm_figure(curves: dict, transitions: dict, basis: str, temp_c=None) -> dict:
+    """Solubility of each salt against temperature, one line per stable solid, transitions marked."""
+    traces = []
+    dash = ["solid", "dash", "dot", "dashdot", "longdash"]
+    for i, (salt, df) in enumerate(curves.items()):
+        df = df.dropna(subset=[basis])
+        seg_id = (df["solid"] != df["solid"].shift()).cumsum()
+        shown = set()
+        for _, seg in df.groupby(seg_id, sort=False):
+            solid = seg["solid"].iloc[0]
+            traces.append({"type": "scatter", "mode": "lines", "x": _list(seg["temp_c"]), "y": _list(seg[basis]),
+                           "name": f"{salt}: {solid}", "legendgroup": f"{salt}:{solid}",
+                           "showlegend": (salt, solid) not in shown,
+                           "line": {"color": solid_colour(solid), "width": 2.5, "dash": dash[i % len(dash)]},
+                           "hovertemplate": f"<b>{salt}</b>, solid {solid}<br>%{{x:.1f}} °C<br>%{{y:.4g}}<extra></extra>"})
+            shown.add((salt, solid))
+        tr = transitions.get(salt)
+        if tr is not None and len(tr):
+            traces.append({"type": "scatter", "mode": "markers+text", "x": _list(tr["temp_c"]), "y": _list(tr[basis]),
+                           "name": f"{salt}: transitions", "text": [f"{t:.1f} °C" for t in tr["temp_c"]],
+                           "textposition": "top left", "textfont": {"size": 11, "color": INK},
+                           "marker": {"symbol": "diamond", "size": 11, "color": INK, "line": {"color": "white", "width": 1}},
+                           "hovertext": [f"<b>{salt}</b>: {a} → {b}<br>at {t:.2f} °C"
+                                         for a, b, t in zip(tr["solid_below"], tr["solid_above"], tr["temp_c"])],
+                           "hoverinfo": "text"})
+    shapes = []
+    if temp_c is not None:
+        shapes.append({"type": "line", "xref": "x", "yref": "paper", "x0": temp_c, "x1": temp_c, "y0": 0, "y1": 1,
+                       "line": {"color": BRINE, "width": 1, "dash": "dot"}})
+    return {"data": traces, "layout": base_layout(title={"text": "Solubility against temperature", "x": 0.01},
+                                                  xaxis=axis("temperature (°C)"), yaxis=axis(POLY_LABEL[basis]),
+                                                  shapes=shapes)}
+
+
+# ----------------------------------------------------------------------------- ponds
+def pond_figure(harvest: pd.DataFrame, order: list, y_title: str) -> dict:
+    """Stacked bars: what each pond harvests."""
+    traces = []
+    for solid in dict.fromkeys(harvest["solid"]):
+        sub = harvest[harvest["solid"] == solid].set_index("pond")
+        y = [float(sub.loc[p, "amount"]) if p in sub.index else 0.0 for p in order]
+        traces.append({"type": "bar", "name": solid, "x": order, "y": y, "marker": {"color": solid_colour(solid)},
+                       "hovertemplate": f"<b>{solid}</b><br>%{{x}}<br>%{{y:.4g}} {y_title}<extra></extra>"})
+    return {"data": traces, "layout": base_layout(title={"text": "Harvest per pond", "x": 0.01}, barmode="stack",
+                                                  xaxis=axis("pond"), yaxis=axis(y_title))}
