@@ -11,14 +11,19 @@ Inputs (all in ``data/``):
 * ``reference/thermochemistry.csv`` — ΔfH° and Cp° of ions, water and solids (NBS82), giving each
   solid's ΔH°sol and ΔCp°sol, hence a3 and a4 of its ln K(T) (van 't Hoff, constant ΔCp°):
   a3 = -ΔH°/R + ΔCp° Tr/R, a4 = ΔCp°/R (see ``phasekit/thermo/tempfn.py``);
-* ``reference/calibration.toml`` — which Pitzer temperature coefficients are fitted for each salt;
+* ``reference/calibration.toml`` — which Pitzer temperature coefficients are fitted for each salt, and
+  (``[ternary.*]``) which binary coefficients are fitted to ternary invariant points;
+* ``reference/ternary_eutonic.csv`` — invariant points of ternary systems; only ``role=fit`` rows are read;
 * the current ``pitzer_binary.csv`` (25 °C values and the coefficients that are not fitted) and
   ``solids.csv``.
 
 For each salt, the a0 of its solids' ln K and the listed Pitzer coefficients (started from zero, so the
 result does not depend on what the files held before) are fitted together with
 ``phasekit.fitting.fit_parameters`` (residuals in ln m of the solved solubility, started from a fit on
-linearized residuals). ΔH° and ΔCp° are never fitted. The validity
+linearized residuals). Before the salts, each ``[ternary.*]`` entry fits its binary coefficients
+(from zero) to the ln IAP - ln K of its solids at its invariant points, the listed salts' own
+calibration being redone at every trial value (:func:`calibrate_ternary`); the salts' final fits
+then hold those values. ΔH° and ΔCp° are never fitted. The validity
 range of a solid is the temperature range of its fit rows, widened to the model's transition temperatures
 in pure water (found by ``phasekit.polytherm``) and to 25 °C (where ΔH° and ΔCp° hold); that of a fitted
 Pitzer pair is the range of the fit rows
@@ -63,6 +68,14 @@ def load_inputs(data_dir: Path = DATA):
     with open(data_dir / "reference" / "calibration.toml", "rb") as fh:
         settings = tomllib.load(fh)["salts"]
     return model, ref[ref["role"] == "fit"].reset_index(drop=True), thermo, settings
+
+
+def load_ternary(data_dir: Path = DATA):
+    """(ternary settings of calibration.toml, role=fit rows of reference/ternary_eutonic.csv)."""
+    with open(data_dir / "reference" / "calibration.toml", "rb") as fh:
+        tern = tomllib.load(fh).get("ternary", {})
+    ref = read_csv("reference/ternary_eutonic.csv", data_dir)
+    return tern, ref[ref["role"] == "fit"].reset_index(drop=True)
 
 
 def fit_rows_of(ref_fit: pd.DataFrame, salt: str) -> pd.DataFrame:
@@ -207,6 +220,87 @@ def activity_sanity(model, salt: str, m_sat: float, temp_c: float) -> list[str]:
     return out
 
 
+def _set_coeffs(model, specs, values):
+    """Model with binary coefficients ``(cation, anion, parameter, coefficient)`` set to ``values``."""
+    b = model.db.binary.copy()
+    for col in ("a1", "a2", "a3", "a4"):
+        b[col] = b[col].astype(float)
+    for (c, a, p, coef), v in zip(specs, values):
+        b.loc[(b["cation"] == c) & (b["anion"] == a) & (b["parameter"] == p), coef] = float(v)
+    return Model(model.db.with_tables(binary=b))
+
+
+def _ternary_molalities(model, row) -> np.ndarray:
+    """Molalities (1, n_species) of a ternary point given in mass-% of its two salts."""
+    from phasekit.chemistry.salts import parse_salt, salt_formula_mass
+
+    w1, w2 = float(row["mass_percent_1"]), float(row["mass_percent_2"])
+    water = 100.0 - w1 - w2
+    m = np.zeros((1, len(model.species)))
+    for salt, w in ((row["salt_1"], w1), (row["salt_2"], w2)):
+        ms = w / salt_formula_mass(salt) / water * 1000.0
+        for sp, n in parse_salt(salt).items():
+            m[0, model.index[sp]] += n * ms
+    return m
+
+
+def calibrate_ternary(model, name: str, cfg: dict, settings: dict, ref_fit, ref_tern, thermo):
+    """Fit the binary coefficients listed in ``cfg['fit']`` to the ternary invariant points of ``name``.
+
+    An outer least-squares problem: for trial values of those coefficients, the salts' own calibration
+    (:func:`calibrate_salt`, binary solubility rows) is redone, then the residuals are ln IAP - ln K of
+    every solid at every role=fit invariant point. Returns (model, {spec: value}, residuals).
+    """
+    from scipy.optimize import least_squares
+
+    specs = [tuple(f.split(":")[0].split("-")) + tuple(f.split(":")[1:]) for f in cfg["fit"]]
+    pts = ref_tern[ref_tern["system"] == name]
+    # each coefficient scaled by its basis function at the hottest point (|P change| there is of order one)
+    tk = float(pts["temp_c"].max()) + 273.15
+    basis = dict(zip(tempfn.COEFFS, np.abs(tempfn.basis(np.array([tk]))[0])))
+    scale = np.array([1.0 / basis[coef] if basis[coef] > 0 else 1.0 for *_, coef in specs]) * 1e-3
+
+    flat = cfg.get("form") == "flattening"
+    if flat:
+        # one variable u for all: a2 = -a1 u, every parameter's slope vanishes at T* = Tr + 1/(2u)
+        if any(coef != "a2" for *_, coef in specs):
+            raise ValueError(f"ternary {name}: form 'flattening' fits a2 coefficients only")
+        b = model.db.binary
+        a1 = np.array([float(b.loc[(b["cation"] == c) & (b["anion"] == a) & (b["parameter"] == p), "a1"].iloc[0])
+                       for c, a, p, _ in specs])
+
+    def coeffs(x):
+        return -a1 * float(x[0]) * 1e-2 if flat else np.asarray(x) * scale
+
+    def inner(x):
+        mod = _set_coeffs(model, specs, coeffs(x))
+        for salt in cfg["salts"]:
+            mod = calibrate_salt(mod, salt, settings[salt], fit_rows_of(ref_fit, salt), thermo)[0].model
+        return mod
+
+    def resid(x):
+        mod = inner(x)
+        out = []
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", ValidityWarning)
+            for _, row in pts.iterrows():
+                m = _ternary_molalities(mod, row)
+                t = float(row["temp_c"])
+                ln_g, _, ln_aw, _, _ = mod.compute(m, t)
+                iap = mod.solids.ln_iap(m, ln_g, ln_aw)[0]
+                for s in str(row["solids"]).split("+"):
+                    k = mod.solids.index[s]
+                    out.append(iap[k] - mod.solids.ln_k(t)[k])
+        return np.array(out)
+
+    # started from zero, as the salts' coefficients, so the result does not depend on the files' values
+    sol = least_squares(resid, np.zeros(1 if flat else len(specs)), diff_step=1e-3, xtol=1e-10, ftol=1e-10,
+                        gtol=1e-10)
+    values = {sp: float(v) for sp, v in zip(specs, coeffs(sol.x))}
+    t_flat = tempfn.TR - 273.15 + 1.0 / (2.0 * float(sol.x[0]) * 1e-2) if flat and sol.x[0] != 0 else None
+    return _set_coeffs(model, specs, list(values.values())), values, sol.fun, pts, t_flat
+
+
 # ----------------------------------------------------------------------------- writing
 def _fmt(v: float) -> str:
     if v == 0:
@@ -266,6 +360,23 @@ def main(dry_run: bool = False, data_dir: Path = DATA) -> dict:
     report = {}
     solid_updates, binary_updates = {}, {}
     problems = []
+    tern_settings, ref_tern = load_ternary(data_dir)
+    tern_sources = {}
+    for name, tcfg in tern_settings.items():
+        model, values, tres, pts, t_flat = calibrate_ternary(model, name, tcfg, settings, ref_fit, ref_tern, thermo)
+        flat_txt = (f"form a2 = -a1/(2 (T* - Tr)) with one T* for all, fitted T* {t_flat:.1f} °C, where the slopes "
+                    f"vanish, residuals ln IAP - ln K {', '.join(f'{v:+.2g}' for v in tres)}" if t_flat else "")
+        print(f"\n{name}: {len(pts)} invariant point(s) fitted, residuals ln IAP - ln K "
+              + " ".join(f"{v:+.2g}" for v in tres) + (f", T* {t_flat:.2f} °C" if t_flat else ""))
+        for (c, a, p, coef), v in values.items():
+            print(f"   {p}/{c}/{a}/{coef:<20s} {v:+.6g}")
+            pt_txt = " and ".join(f"{r.salt_1}+{r.salt_2} {r.temp_c:g} °C {r.mass_percent_1:g} % + "
+                               f"{r.mass_percent_2:g} % ({r.source})" for r in pts.itertuples())
+            tern_sources[(c, a, p)] = (coef, v, f"{coef} {v:+.4g} fitted in this project to the {name} invariant "
+                                       f"point(s) of data/reference/ternary_eutonic.csv (role=fit: {pt_txt}), "
+                                       f"with the binary calibration of {', '.join(tcfg['salts'])} redone at "
+                                       f"each trial value{', ' + flat_txt if flat_txt else ''} "
+                                       f"(choice: {tcfg['why']})")
     for salt, cfg in settings.items():
         rows = fit_rows_of(ref_fit, salt)
         res, specs, props = calibrate_salt(model, salt, cfg, rows, thermo)
@@ -344,6 +455,12 @@ def main(dry_run: bool = False, data_dir: Path = DATA) -> dict:
                     else:
                         parts.append("no temperature dependence: held at the 25 °C value (the saturated "
                                      "solutions do not constrain it)")
+                if (cat, an, row.parameter) in tern_sources:
+                    coef, v, txt = tern_sources[(cat, an, row.parameter)]
+                    upd[coef] = v
+                    # the older parts of the source, without a previous text of this coefficient
+                    parts = [_a0_part(row.source)] + [x.strip() for x in row.source.split(";")[1:]
+                                                      if not x.strip().startswith(f"{coef} ")] + [txt]
                 upd["source"] = "; ".join(parts)
                 binary_updates[(cat, an, row.parameter)] = upd
         # sanity of the activity up to saturation, with the solids' new validity ranges
