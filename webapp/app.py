@@ -16,6 +16,7 @@ from webapp import (
     diagram_view,
     export,
     layout,
+    leach_view,
     path_view,
     polytherm_view,
     pond_view,
@@ -31,7 +32,7 @@ def create_app() -> Dash:
     # uploads are checked in the browser (2 MB); this refuses anything far larger at the door
     app.server.config["MAX_CONTENT_LENGTH"] = 4 * MAX_UPLOAD_BYTES
     app.layout = layout.build
-    for view in (brine_view, diagram_view, saturation_view, path_view, polytherm_view, pond_view, session_view,
+    for view in (brine_view, diagram_view, saturation_view, path_view, polytherm_view, pond_view, leach_view, session_view,
                  export):
         view.register(app)
     return app

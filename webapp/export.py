@@ -37,13 +37,13 @@ def xlsx_bytes(df: pd.DataFrame, sheet: str, about: dict) -> bytes:
     return buf.getvalue()
 
 
-def export_table(_clicks, sat, diagram, path, poly, ponds, brine, temp_c):
+def export_table(_clicks, sat, diagram, path, poly, ponds, brine, temp_c, leach=None):
     """Callback: send the table whose button was pressed."""
     trig = ctx.triggered_id
     if not isinstance(trig, dict) or not (ctx.triggered and ctx.triggered[0].get("value")):
         raise PreventUpdate
     tables = {}
-    for store in (sat, diagram, path, poly, ponds):
+    for store in (sat, diagram, path, poly, ponds, leach):
         tables.update((store or {}).get("tables", {}))
     item = tables.get(trig["table"])
     if item is None:
@@ -61,6 +61,7 @@ def register(app):
     app.callback(Output("table-download", "data"), Input({"type": "export", "table": ALL, "fmt": ALL}, "n_clicks"),
                  State("res-sat", "data"), State("res-diagram", "data"), State("path-result", "data"),
                  State("res-poly", "data"), State("res-ponds", "data"), State("brine", "data"), State("temp-c", "data"),
+                 State("res-leach", "data"),
                  prevent_initial_call=True)(export_table)
     app.clientside_callback(ClientsideFunction("phasekit", "downloadFigure"), Output("figure-export-done", "data"),
                             Input({"type": "figexport", "graph": ALL, "fmt": ALL}, "n_clicks"),

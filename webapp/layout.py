@@ -8,6 +8,7 @@ from dash import dcc, html
 from webapp import (
     brine_view,
     diagram_view,
+    leach_view,
     path_view,
     polytherm_view,
     pond_view,
@@ -34,6 +35,7 @@ TABS = [
     ("path", "Evaporation & cooling", path_view),
     ("polytherm", "Solubility vs temperature", polytherm_view),
     ("ponds", "Pond train", pond_view),
+    ("leach", "Dissolution rate", leach_view),
 ]
 
 
@@ -64,6 +66,7 @@ def build() -> html.Div:
         dcc.Store(id="brine"),
         dcc.Store(id="path-result"),
         dcc.Store(id="res-sat"), dcc.Store(id="res-diagram"), dcc.Store(id="res-poly"), dcc.Store(id="res-ponds"),
+        dcc.Store(id="res-leach"),
         dcc.Store(id="figure-export-done"),
         dcc.Download(id="table-download"),
     ], className="pk-page")
