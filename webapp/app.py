@@ -39,17 +39,25 @@ def create_app() -> Dash:
 
 
 def warm_up() -> float:
-    """Compile the model's kernels before the first request (a path on the demo brine); seconds taken."""
+    """Compile the model's kernels and fill the caches the first page needs (the demo brine's path
+    and the demo system's diagram) before the first request; seconds taken."""
     import phasekit as pk
+    from webapp import diagram_source
     from webapp.demo import demo_session
 
     t0 = time.perf_counter()
-    b = demo_session()["brine"]
+    demo = demo_session()
+    b = demo["brine"]
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
         raw, brine = brine_view.build_brine(b["rows"], b["units"], b["density"], b["balance_on"])
         pk.default_model().saturation(brine, 25.0)
         path_view.run_path(brine.molalities, "evaporation", "fractional", 25.0)
+        try:
+            diagram_source.base_figure(demo["system"], float(demo["temp_c"]), demo.get("coordinates", "triangular"),
+                                       demo.get("basis", "g_per_100g_water"))
+        except Exception:  # a warm-up must never stop the server; the page reports any error itself
+            pass
     return time.perf_counter() - t0
 
 
