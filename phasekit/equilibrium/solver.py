@@ -351,6 +351,16 @@ def solve_robust(model, b, water, temp_c, candidates=None, warm: EquilibriumStat
         except ConvergenceError:
             step /= 2.0
             if step < 1e-6:
+                total = water * np.exp(pos)
+                if state.w < 0.02 * total:
+                    # the liquid vanished on the way: the solids (hydrates) bind nearly all the water
+                    raise ConvergenceError(
+                        f"no liquid at equilibrium at {temp_c:g} °C: {water:.4g} kg of water is not enough for "
+                        f"the solids ({', '.join(model.solids.names[k] for k in state.active)}), which bind "
+                        "nearly all of it as hydrate water; the mixture lies past its drying point",
+                        {"active": [model.solids.names[k] for k in state.active], "liquid_fraction":
+                         state.w / total, "water_kg": water},
+                    ) from None
                 raise ConvergenceError(f"{error} (continuation in water also failed)", error.state) from None
     return state
 

@@ -134,3 +134,12 @@ def test_non_convergence_raises_with_state(model):
     with pytest.raises(ConvergenceError) as err:
         solve(model, b, 1.0, 25.0, max_changes=0)
     assert err.value.state["active"]
+
+
+def test_too_little_water_for_a_liquid_is_a_clear_error(model):
+    """6 mol Na2SO4 per kg water at 20 °C: mirabilite (10 H2O) would need 1.08 kg water — no liquid."""
+    from phasekit.errors import ConvergenceError
+
+    with pytest.raises(ConvergenceError) as err:
+        model.equilibrate({"Na": 12.0, "SO4": 6.0}, 20.0)
+    assert "no liquid" in str(err.value) and "mirabilite" in str(err.value)
