@@ -15,7 +15,7 @@ from pathlib import Path
 
 import pandas as pd
 
-from phasekit.chemistry.species import parse_species
+from phasekit.chemistry.species import is_species, parse_species
 from phasekit.errors import InputError
 
 #: largest input file read by default, in MB (10**6 bytes)
@@ -102,14 +102,6 @@ def read_source(source, max_mb: float = MAX_INPUT_MB, sheet=0) -> pd.DataFrame:
     return df
 
 
-def _is_species(name: str) -> bool:
-    try:
-        parse_species(name)
-    except InputError:
-        return False
-    return True
-
-
 def plan_columns(df: pd.DataFrame, id_column=None, ignore_columns=(), density_column=None):
     """Species columns and the id column of a table.
 
@@ -136,7 +128,7 @@ def plan_columns(df: pd.DataFrame, id_column=None, ignore_columns=(), density_co
         if name not in columns:
             raise InputError("ignore_columns", name, f"one of the columns {columns}")
     if id_column is None and columns and columns[0] != density_column and columns[0] not in ignore \
-            and not _is_species(columns[0]):
+            and not is_species(columns[0]):
         id_column = columns[0]
     species: list[str] = []
     seen: dict[str, str] = {}

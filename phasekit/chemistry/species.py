@@ -98,6 +98,15 @@ def parse_species(text: str) -> str:
     return base
 
 
+def is_species(name) -> bool:
+    """True if ``name`` is a species of the database in any accepted spelling."""
+    try:
+        parse_species(name)
+    except InputError:
+        return False
+    return True
+
+
 def charge(name: str) -> int:
     """Charge of a species (any accepted spelling)."""
     return SPECIES[parse_species(name)].charge

@@ -4,20 +4,11 @@ from __future__ import annotations
 
 import pandas as pd
 
+from phasekit.chemistry.species import is_species
 from phasekit.cli import common as c
 from phasekit.errors import InputError
 
 _NUMERIC = ("temp_c", "molality", "mass_percent", "grams_per_100g_water")
-
-
-def _is_species(name: str) -> bool:
-    from phasekit.chemistry.species import parse_species
-
-    try:
-        parse_species(name)
-    except InputError:
-        return False
-    return True
 
 
 def _read_data(path: str) -> pd.DataFrame:
@@ -26,7 +17,7 @@ def _read_data(path: str) -> pd.DataFrame:
     df = read_source(path)
     out = df.copy()
     for col in out.columns:
-        if col not in _NUMERIC and not _is_species(col):
+        if col not in _NUMERIC and not is_species(col):
             continue  # text columns (salt, solids, source ...) are passed as they are
         conv = pd.to_numeric(out[col], errors="coerce")
         bad = conv.isna() & out[col].notna()

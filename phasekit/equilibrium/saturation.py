@@ -18,7 +18,7 @@ import pandas as pd
 
 from phasekit.chemistry.species import M_WATER
 from phasekit.equilibrium.common import composition_array, frame_array
-from phasekit.errors import ValidityWarning, warn_validity
+from phasekit.errors import InputError, ValidityWarning, warn_validity
 
 #: |SI| within this band counts as saturated (log10 units; about 1 % in the activity product,
 #: below the uncertainty of the solubility products themselves)
@@ -126,7 +126,8 @@ def saturation(model, brine, temp_c: float, amounts: bool | None = None) -> pd.D
         out = pd.DataFrame(si, index=brine.index, columns=model.solids.names)
         out.attrs["warnings"] = model._validity(m, temp_c, np.zeros(1))
         if amounts:
-            raise NotImplementedError("amounts for many brines: call saturation() per brine")
+            raise InputError("amounts", amounts, "False for a DataFrame of brines (amounts are computed per brine: "
+                             "call saturation() with one brine)")
         return out
     m0 = composition_array(model, brine)
     model._check(m0[None, :], temp_c, None)

@@ -21,9 +21,8 @@ from dataclasses import replace
 import numpy as np
 from scipy.optimize import brentq
 
-from phasekit.chemistry.species import M_WATER
 from phasekit.equilibrium.solver import _newton, _si, solve_robust
-from phasekit.errors import ConvergenceError, InputError, ValidityWarning
+from phasekit.errors import InputError, ValidityWarning
 
 DW_MAX = 0.03  # largest relative change of liquid water per step
 DT_MAX = 2.0  # largest temperature change per step, °C
@@ -255,11 +254,5 @@ def run_programme(model, b, water, nodes, mode, stop_when=None):
     path = _Path(model, b, water, nodes, mode, stop_when)
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", ValidityWarning)
-        try:
-            end = path.run()
-        except ConvergenceError:
-            raise
+        end = path.run()
     return path, end
-
-
-__all__ = ["run_programme", "M_WATER"]

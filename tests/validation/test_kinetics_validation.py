@@ -8,7 +8,7 @@ Tolerances
   effect the analytical solution leaves out, the change of the brine, is below 1e-9 here.
 - Diffusion coefficients at 25 °C, 0.3 %: four-figure values. Robinson & Stokes's limiting
   values and the CRC ionic values in data/kinetics_ions.csv both derive from limiting
-  conductances, so this checks the transcription and the Nernst–Hartley equation, not an
+  conductances, so this checks the copied values and the Nernst–Hartley equation, not an
   independent measurement.
 - Temperature dependence, 2 %: the exponents of data/kinetics_ions.csv were fitted to the 0
   and 100 °C conductances; the check is the 18 °C column of the same table (not used in the
