@@ -5,7 +5,7 @@ from phasekit.diagrams import isotherm, read_diagram, reciprocal_isotherm, seawa
 from phasekit.equilibrium.solubility import polytherm, solubility
 from phasekit.errors import ConvergenceError, InputError, PhasekitError, RangeError, ValidityWarning
 from phasekit.model import Model, default_model, load_model
-from phasekit.paths import Pond, cool, dissolve, evaporate, heat, mix, pond_train, programme
+from phasekit.paths import Pond, cool, dissolve, evaporate, heat, hot_cold_cycle, mix, pond_train, programme
 
 __version__ = "0.1.0"
 
@@ -23,6 +23,7 @@ __all__ = [
     "dissolve",
     "evaporate",
     "heat",
+    "hot_cold_cycle",
     "load_model",
     "mix",
     "pond_train",

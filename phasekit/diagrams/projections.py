@@ -46,7 +46,7 @@ class ProjectionResult(DiagramData):
     Attributes
     ----------
     system : str
-        ``"reciprocal"`` (Na, K // Cl, SO4) or ``"seawater"`` (Na, K, Mg // Cl, SO4 at halite saturation).
+        ``"reciprocal"`` (Na, K // Cl, SO4), ``"reciprocal_nitrate"`` (Na, K // Cl, NO3) or ``"seawater"`` (Na, K, Mg // Cl, SO4 at halite saturation).
     temp_c : float
     curves : pandas.DataFrame
         Field boundaries (and the stretches of the sides): ``boundary`` (id), ``solids`` (tuple;
@@ -85,9 +85,13 @@ class ProjectionResult(DiagramData):
         return sorted(set(self.fields["solid"]))
 
 
+#: second anion of each reciprocal system
+RECIPROCAL_ANION = {"reciprocal": "SO4", "reciprocal_nitrate": "NO3"}
+
+
 def _plot_xy(system: str, coords: dict):
-    if system == "reciprocal":
-        return coords["jaenecke_K2"] / 100.0, coords["jaenecke_SO4"] / 100.0
+    if system in RECIPROCAL_ANION:
+        return coords["jaenecke_K2"] / 100.0, coords[f"jaenecke_{RECIPROCAL_ANION[system]}"] / 100.0
     mg, so4 = coords["jaenecke_Mg"] / 100.0, coords["jaenecke_SO4"] / 100.0
     return mg + 0.5 * so4, SQRT3_2 * so4
 
@@ -177,13 +181,16 @@ def _build(model, sysm, system: str, temp_c: float) -> ProjectionResult:
 
 
 def _corner_coords(system, proj):
-    if system == "reciprocal":
-        return {"jaenecke_K2": np.array(100.0 * proj[0]), "jaenecke_SO4": np.array(100.0 * proj[1])}
+    if system in RECIPROCAL_ANION:
+        return {"jaenecke_K2": np.array(100.0 * proj[0]),
+                f"jaenecke_{RECIPROCAL_ANION[system]}": np.array(100.0 * proj[1])}
     return {"jaenecke_Mg": np.array(100.0 * proj[0]), "jaenecke_SO4": np.array(100.0 * proj[1])}
 
 
-def reciprocal_isotherm(temp_c: float, exclude=(), model=None) -> ProjectionResult:
-    """Isotherm of the reciprocal salt pair Na+, K+ // Cl−, SO4²− – H2O in Jänecke's square.
+def reciprocal_isotherm(temp_c: float, exclude=(), model=None, anion: str = "SO4") -> ProjectionResult:
+    """Isotherm of a reciprocal salt pair in Jänecke's square: Na+, K+ // Cl−, SO4²− – H2O
+    (``anion="SO4"``) or Na+, K+ // Cl−, NO3− – H2O (``anion="NO3"``, the system of the conversion
+    NaNO3 + KCl → KNO3 + NaCl).
 
     Parameters
     ----------
@@ -191,17 +198,22 @@ def reciprocal_isotherm(temp_c: float, exclude=(), model=None) -> ProjectionResu
         Temperature, °C.
     exclude : sequence of str
         Solids left out (metastable diagrams).
+    anion : {"SO4", "NO3"}
+        The anion paired with chloride.
 
     Returns
     -------
     ProjectionResult
+        ``system`` is ``"reciprocal"`` (SO4) or ``"reciprocal_nitrate"`` (NO3); the second
+        Jänecke coordinate is ``jaenecke_SO4`` (mol SO4 per 100 mol Cl2 + SO4) or
+        ``jaenecke_NO3`` (mol NO3 per 100 mol Cl + NO3).
     """
     from phasekit.model import default_model
 
     model = model or default_model()
-    sysm = ReciprocalSystem(model, exclude)
+    sysm = ReciprocalSystem(model, exclude, anion=anion)
     t = check_temperature(model, sysm.ions, temp_c)
-    return _build(model, sysm, "reciprocal", t)
+    return _build(model, sysm, "reciprocal" if anion == "SO4" else "reciprocal_nitrate", t)
 
 
 def seawater_isotherm(temp_c: float, exclude=(), model=None) -> ProjectionResult:

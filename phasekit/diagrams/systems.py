@@ -9,8 +9,8 @@ reads: on a face of the diagram with ``k`` free coordinates a saturation curve c
 
 - :class:`TernarySystem` — salt A + salt B + water with one common ion; ``z = (x, s)``,
   ``x`` = mole fraction of salt B in the dissolved salts, ``s = ln(m_A + m_B)``.
-- :class:`ReciprocalSystem` — Na+, K+ // Cl−, SO4²− – H2O; ``z = (j_K, j_SO4, s)`` with the
-  equivalent fractions of K among the cations and of SO4 among the anions (Jänecke's
+- :class:`ReciprocalSystem` — Na+, K+ // Cl−, Y – H2O with Y = SO4²− or NO3−; ``z = (j_K, j_Y, s)``
+  with the equivalent fractions of K among the cations and of Y among the anions (Jänecke's
   square, Jänecke 1906, Z. anorg. Chem. 51, 132) and ``s = ln`` (cation equivalents per kg
   water).
 - :class:`HaliteSaturatedSystem` — Na+, K+, Mg2+ // Cl−, SO4²− – H2O saturated with halite,
@@ -224,25 +224,34 @@ class TernarySystem(System):
 
 
 class ReciprocalSystem(System):
-    """Na+, K+ // Cl−, SO4²− – H2O in Jänecke's square (see the module docstring)."""
+    """Na+, K+ // Cl−, Y – H2O in Jänecke's square, Y = SO4²− or NO3− (see the module docstring)."""
 
     CATIONS = ("Na", "K")
     ANIONS = ("Cl", "SO4")
+    SECOND_ANIONS = ("SO4", "NO3")
 
-    def __init__(self, model, exclude=()):
-        ions = ["Na", "K", "Cl", "SO4"]
+    def __init__(self, model, exclude=(), anion: str = "SO4"):
+        if anion not in self.SECOND_ANIONS:
+            raise InputError("anion", anion, "'SO4' (Na, K // Cl, SO4) or 'NO3' (Na, K // Cl, NO3)")
+        self.anion = anion
+        self.ANIONS = ("Cl", anion)
+        #: mol of the second anion per equivalent
+        self.per_eq = 0.5 if anion == "SO4" else 1.0
+        ions = ["Na", "K", "Cl", anion]
         self.iv = np.array([model.index[s] for s in ions])
         self.model_index = {s: model.index[s] for s in ions}
         self.ns = len(model.species)
         cands = system_solids(model, ions, exclude)
-        # domain: jK >= 0, 1 - jK >= 0, jS >= 0, 1 - jS >= 0
+        # domain: jK >= 0, 1 - jK >= 0, jY >= 0, 1 - jY >= 0
         c = np.array([[1.0, 0, 0], [-1.0, 0, 0], [0, 1.0, 0], [0, -1.0, 0]])
         d = np.array([0.0, 1.0, 0.0, 1.0])
+        na_y, k_y = ("Na2SO4", "K2SO4") if anion == "SO4" else ("NaNO3", "KNO3")
         verts = [Vertex("NaCl", (0.0, 0.0), (0, 2)), Vertex("KCl", (1.0, 0.0), (1, 2)),
-                 Vertex("K2SO4", (1.0, 1.0), (1, 3)), Vertex("Na2SO4", (0.0, 1.0), (0, 3))]
-        edges = [Edge("NaCl–KCl", 0, 1, 2), Edge("KCl–K2SO4", 1, 2, 1), Edge("Na2SO4–K2SO4", 3, 2, 3),
-                 Edge("NaCl–Na2SO4", 0, 3, 0)]
-        super().__init__(name="Na+, K+ // Cl−, SO4²− – H2O", ions=ions, n=3, d=2, imposed=[], candidates=cands,
+                 Vertex(k_y, (1.0, 1.0), (1, 3)), Vertex(na_y, (0.0, 1.0), (0, 3))]
+        edges = [Edge("NaCl–KCl", 0, 1, 2), Edge(f"KCl–{k_y}", 1, 2, 1), Edge(f"{na_y}–{k_y}", 3, 2, 3),
+                 Edge(f"NaCl–{na_y}", 0, 3, 0)]
+        label = "SO4²−" if anion == "SO4" else "NO3−"
+        super().__init__(name=f"Na+, K+ // Cl−, {label} – H2O", ions=ions, n=3, d=2, imposed=[], candidates=cands,
                          bound_c=c, bound_d=d, vertices=verts, edges=edges, s_index=2,
                          s_range=(np.log(1e-3), np.log(80.0)))
 
@@ -253,16 +262,17 @@ class ReciprocalSystem(System):
         out[:, self.iv[0]] = (1.0 - Z[:, 0]) * e
         out[:, self.iv[1]] = Z[:, 0] * e
         out[:, self.iv[2]] = (1.0 - Z[:, 1]) * e
-        out[:, self.iv[3]] = 0.5 * Z[:, 1] * e
+        out[:, self.iv[3]] = self.per_eq * Z[:, 1] * e
         return out
 
     def coordinates(self, M: np.ndarray) -> dict:
-        """Jänecke coordinates of ion molality rows: mol per 100 mol of (Na2 + K2) = 100 mol (Cl2 + SO4)."""
+        """Jänecke coordinates of ion molality rows: mol per 100 mol of (Na2 + K2) = 100 mol (Cl2 + Y2/z)."""
         M = np.atleast_2d(M)
-        na, k, cl, so4 = (M[:, i] for i in self.iv)
+        na, k, cl, y = (M[:, i] for i in self.iv)
         e = na + k
         with np.errstate(divide="ignore", invalid="ignore"):
-            return {"jaenecke_K2": 100.0 * k / e, "jaenecke_SO4": 100.0 * 2.0 * so4 / (cl + 2.0 * so4),
+            y_eq = y / self.per_eq
+            return {"jaenecke_K2": 100.0 * k / e, f"jaenecke_{self.anion}": 100.0 * y_eq / (cl + y_eq),
                     "jaenecke_H2O": 100.0 / M_WATER / (e / 2.0)}
 
 

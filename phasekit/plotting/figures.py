@@ -218,6 +218,10 @@ def jaenecke_figure(result, path=None, model=None) -> go.Figure:
         title = f"Na+, K+ // Cl−, SO4²− – H2O, {meta['temp_c']:g} °C (Jänecke: mol per 100 mol salts)"
         fig.update_xaxes(title="K2 / (Na2 + K2)", range=[-0.08, 1.08])
         fig.update_yaxes(title="SO4 / (Cl2 + SO4)", range=[-0.08, 1.08], scaleanchor="x")
+    elif system == "reciprocal_nitrate":
+        title = f"Na+, K+ // Cl−, NO3− – H2O, {meta['temp_c']:g} °C (Jänecke: mol per 100 mol salts)"
+        fig.update_xaxes(title="K / (Na + K)", range=[-0.08, 1.08])
+        fig.update_yaxes(title="NO3 / (Cl + NO3)", range=[-0.08, 1.08], scaleanchor="x")
     else:
         title = f"Oceanic salts at halite saturation, {meta['temp_c']:g} °C (Jänecke K2–Mg–SO4)"
         fig.update_xaxes(visible=False, range=[-0.08, 1.08])

@@ -72,6 +72,10 @@ def projection_path(model, system: str, df: pd.DataFrame, field: str = "path") -
         na, k, cl, so4 = m[:, idx["Na"]], m[:, idx["K"]], m[:, idx["Cl"]], m[:, idx["SO4"]]
         with np.errstate(divide="ignore", invalid="ignore"):
             return k / (na + k), 2 * so4 / (cl + 2 * so4)
+    if system == "reciprocal_nitrate":
+        na, k, cl, no3 = m[:, idx["Na"]], m[:, idx["K"]], m[:, idx["Cl"]], m[:, idx["NO3"]]
+        with np.errstate(divide="ignore", invalid="ignore"):
+            return k / (na + k), no3 / (cl + no3)
     k2, mg, so4 = m[:, idx["K"]] / 2, m[:, idx["Mg"]], m[:, idx["SO4"]]
     p = k2 + mg + so4
     with np.errstate(divide="ignore", invalid="ignore"):

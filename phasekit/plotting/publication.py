@@ -168,8 +168,8 @@ def save_jaenecke(result, file, path=None, dpi: int = 200, model=None) -> Path:
         ax.plot(x, y, color=style.PATH_COLOUR, lw=1.2, marker="o", ms=3, label=label)
     ax.set_aspect("equal")
     ax.axis("off")
-    title = ("Na+, K+ // Cl−, SO4²− – H2O" if meta["system"] == "reciprocal"
-             else "Oceanic salts at halite saturation (K2–Mg–SO4)")
+    title = {"reciprocal": "Na+, K+ // Cl−, SO4²− – H2O", "reciprocal_nitrate": "Na+, K+ // Cl−, NO3− – H2O"}.get(
+        meta["system"], "Oceanic salts at halite saturation (K2–Mg–SO4)")
     ax.set_title(f"{title}, {meta['temp_c']:g} °C", fontsize=11)
     if len(inv):
         ax.legend(fontsize=8, loc="upper right")

@@ -1,0 +1,247 @@
+"""Lithium salts: single-salt and ternary solubilities at 25 °C (and 20–40 °C), and a salar-pond evaporation.
+
+Which data fitted what
+----------------------
+* LiCl·H2O and Li2SO4·H2O: ln K a0 (and a1 of Li-Cl beta0) fitted by ``scripts/calibrate_solids.py`` to the
+  ``role=fit`` rows of ``data/reference/binary_solubility.csv`` (LiCl 20, 30, 40 °C; Li2SO4 0, 10, 30 °C).
+  Checked here: its ``role=check`` rows (LiCl 25 °C; Li2SO4 20, 25 °C; CRC Handbook, from memory), with the
+  tolerances of ``tests/validation/test_solubility.py`` (same rule: three times the fit rms, at least 1 %).
+* LiKSO4 and LiCl·MgCl2·7H2O: ln K (25 °C, held constant) fitted by ``scripts/calibrate_lithium.py`` to one
+  invariant point each, the ``role=fit`` rows of ``data/reference/lithium_invariants.csv`` (LiKSO4 +
+  arcanite; bischofite + LiCl·MgCl2·7H2O). Checked here: the other invariant point of the same system
+  (``role=check``), never the fit point.
+* Water activity of saturated LiCl: Greenspan 1977, J. Res. Natl. Bur. Stand. 81A, 89 (relative humidity
+  over saturated salt solutions; from memory): 11.31 % (20 °C), 11.30 % (25 °C), 11.28 % (30 °C),
+  11.21 % (40 °C). Not used in any fit.
+
+Tolerances
+----------
+Invariant points: 2 mass-% absolute on each salt, the uncertainty of the recalled values (LS65, from memory,
+low confidence, recalled to about ±2 %), fixed before the model was run against them. Water activity:
+0.01 absolute (Greenspan's stated uncertainty is about 0.003; the rest for the remembered digits).
+
+Findings (strict xfails: they fail the suite as soon as they pass, so the note is revisited)
+-------------------------------------------------------------------------------------------
+The Li-Cl parameters are Pitzer & Mayorga 1973 values fitted to 6 mol/kg; saturated LiCl is 20 mol/kg.
+Extrapolated, the positive C^phi drives the osmotic coefficient to about 5.1 instead of 3.0, so the model's
+water activity of saturated LiCl is 0.025 against 0.113. The LiCl·H2O ln K fitted to the solubilities
+absorbs this for the pure salt (its 25 °C solubility is right to 0.1 %), but not in mixtures: in a brine
+of 5–20 mol/kg LiCl every activity coefficient and a_w is off. This, not a missing mixing parameter, is
+what the LiCl-MgCl2 check shows (a fitted psi(Li,Mg,Cl) = -0.026 puts bischofite on the recalled first
+invariant point but moves the second one to 32 % LiCl + 21 % MgCl2, further off). Li-Cl parameters fitted
+to activity data up to saturation are needed before the lithium chloride systems can be trusted.
+"""
+
+import warnings
+
+import numpy as np
+import pytest
+
+import phasekit as pk
+from phasekit.data_files import read_csv
+from phasekit.paths import ion_loss_point
+
+REF = read_csv("reference/binary_solubility.csv")
+TERN = read_csv("reference/lithium_invariants.csv")
+BRINE = read_csv("demo/lithium_brine.csv")  # INVENTED demo brine (see the file header)
+
+TOL_BINARY = {"LiCl": 0.010, "Li2SO4": 0.020}  # as tests/validation/test_solubility.py
+TOL_MASS_PERCENT = 2.0
+
+LI_SOLIDS = ("LiCl·H2O", "Li2SO4·H2O", "LiKSO4", "LiCl·MgCl2·7H2O")
+
+_LICL_BINARY = ("Pitzer & Mayorga 1973 Li-Cl parameters (fitted to 6 mol/kg) extrapolated to 20 mol/kg: "
+                "the model's a_w of saturated LiCl is 0.025 against 0.113 (osmotic coefficient about 5.1 "
+                "against 3.0); see the module docstring")
+
+
+@pytest.fixture(autouse=True)
+def _quiet():
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", pk.ValidityWarning)
+        yield
+
+
+def _check_rows(system):
+    rows = TERN[(TERN["system"] == system) & (TERN["role"] == "check")]
+    assert len(rows), system
+    return rows
+
+
+def _point(iso, solids):
+    ip = iso.invariant_points
+    hit = ip[[set(s) == set(solids) for s in ip["solids"]]]
+    assert len(hit) == 1, f"{solids} not an invariant point of the model: {list(ip['solids'])}"
+    return hit.iloc[0]
+
+
+# ------------------------------------------------------------------ separation of fit and check
+@pytest.mark.validation
+def test_fit_and_check_rows_are_separate():
+    key = ["system", "solids", "temp_c"]
+    fit = TERN[TERN["role"] == "fit"]
+    assert set(TERN["role"]) == {"fit", "check"}
+    assert not set(map(tuple, fit[key].to_numpy().tolist())) & set(
+        map(tuple, TERN[TERN["role"] == "check"][key].to_numpy().tolist()))
+    # the stored ln K are what the script gives from the fit rows
+    import sys
+    from pathlib import Path
+
+    sys.path.insert(0, str(Path(__file__).resolve().parents[2] / "scripts"))
+    import calibrate_lithium as cl
+
+    model = pk.default_model()
+    for solid, (a0, *_rest) in cl.fit(cl.DATA).items():
+        k = model.solids.index[solid]
+        assert model.solids.coeffs[k, 0] == pytest.approx(a0, rel=1e-8)
+        assert "fitted in this project to 1 invariant point" in model.db.solids.set_index("solid").loc[solid, "source"]
+
+
+# ------------------------------------------------------------------ single salts
+BIN = REF[REF["salt"].isin(["LiCl", "Li2SO4"]) & (REF["role"] == "check")]
+
+
+@pytest.mark.validation
+@pytest.mark.parametrize("salt,solid,temp_c,expected,source",
+                         [(r.salt, r.solid, float(r.temp_c), float(r.mass_percent), r.source)
+                          for r in BIN.itertuples() if r.temp_c <= 35],
+                         ids=lambda v: str(v))
+def test_binary_solubility(salt, solid, temp_c, expected, source):
+    r = pk.solubility(salt, temp_c)
+    assert r.solid == solid
+    assert r.mass_percent == pytest.approx(expected, rel=TOL_BINARY[salt]), source
+
+
+@pytest.mark.validation
+def test_binary_outside_the_data_is_refused():
+    # Li2SO4 50 °C (24.8 %, CRC Handbook, from memory) and LiCl 50 °C lie beyond the Li-SO4 (15–35 °C) and
+    # Li-Cl (20–40 °C) parameters: the model refuses rather than extrapolating.
+    for salt in ("Li2SO4", "LiCl"):
+        with pytest.raises(pk.RangeError):
+            pk.solubility(salt, 50.0)
+
+
+@pytest.mark.validation
+@pytest.mark.xfail(strict=True, reason=_LICL_BINARY)
+@pytest.mark.parametrize("temp_c,a_w", [(20.0, 0.1131), (25.0, 0.1130), (30.0, 0.1128), (40.0, 0.1121)])
+def test_water_activity_of_saturated_licl(temp_c, a_w):
+    # Greenspan 1977, J. Res. Natl. Bur. Stand. 81A, 89 (from memory)
+    assert pk.solubility("LiCl", temp_c).water_activity == pytest.approx(a_w, abs=0.01)
+
+
+# ------------------------------------------------------------------ ternary systems, 25 °C
+@pytest.mark.validation
+def test_licl_mgcl2_solids():
+    # LS65 (from memory): at 25 °C lithium carnallite has its own field between LiCl·H2O and bischofite
+    iso = pk.isotherm(["LiCl", "MgCl2"], temp_c=25)
+    assert set(iso.curves["solid"]) == {"LiCl·H2O", "LiCl·MgCl2·7H2O", "bischofite"}
+    assert {frozenset(s) for s in iso.invariant_points["solids"]} == {
+        frozenset({"LiCl·H2O", "LiCl·MgCl2·7H2O"}), frozenset({"LiCl·MgCl2·7H2O", "bischofite"})}
+
+
+@pytest.mark.validation
+@pytest.mark.xfail(strict=True, reason=(
+    "model 44.7 % LiCl + 1.1 % MgCl2 against 40.5 % + 5.0 % (LS65, from memory, low confidence). At the "
+    "recalled fit point (12.6 % + 28.6 %) the model's bischofite, not fitted there, is supersaturated by "
+    "ln 1.12: the model's LiCl·H2O and bischofite curves both react too strongly to the other salt. "
+    + _LICL_BINARY + "; no published theta(Li,Mg), psi(Li,Mg,Cl) known to us (zero)"))
+def test_licl_mgcl2_invariant_point():
+    iso = pk.isotherm(["LiCl", "MgCl2"], temp_c=25)
+    for r in _check_rows("LiCl-MgCl2").itertuples():
+        p = _point(iso, r.solids.split("+"))
+        assert p["LiCl_mass_percent"] == pytest.approx(r.mass_percent_1, abs=TOL_MASS_PERCENT), r.source
+        assert p["MgCl2_mass_percent"] == pytest.approx(r.mass_percent_2, abs=TOL_MASS_PERCENT), r.source
+
+
+@pytest.mark.validation
+def test_li2so4_k2so4_solids():
+    # LS65 (from memory): the double salt LiKSO4 has a field at 25 °C between Li2SO4·H2O and arcanite
+    iso = pk.isotherm(["Li2SO4", "K2SO4"], temp_c=25)
+    assert set(iso.curves["solid"]) == {"Li2SO4·H2O", "LiKSO4", "arcanite"}
+
+
+@pytest.mark.validation
+@pytest.mark.xfail(strict=True, reason=(
+    "model 24.9 % Li2SO4 + 1.4 % K2SO4 against 22.3 % + 6.1 % (LS65, from memory, low confidence). At the "
+    "recalled fit point (7.6 % + 12.3 %) arcanite, not fitted there, is supersaturated by ln 0.55: the model's "
+    "K activity in Li2SO4 solutions is too high. No published psi(Li,K,SO4) is known to us (zero) and "
+    "theta(Li,K) = -0.022 comes from chloride solutions (Pitzer & Kim 1974); psi(Li,K,SO4) = -0.060 would "
+    "put arcanite on the fit point (not adopted: it would be fitted to the same recalled point as ln K)"))
+def test_li2so4_k2so4_invariant_point():
+    iso = pk.isotherm(["Li2SO4", "K2SO4"], temp_c=25)
+    for r in _check_rows("Li2SO4-K2SO4").itertuples():
+        p = _point(iso, r.solids.split("+"))
+        assert p["Li2SO4_mass_percent"] == pytest.approx(r.mass_percent_1, abs=TOL_MASS_PERCENT), r.source
+        assert p["K2SO4_mass_percent"] == pytest.approx(r.mass_percent_2, abs=TOL_MASS_PERCENT), r.source
+
+
+@pytest.mark.validation
+@pytest.mark.xfail(strict=True, reason=(
+    "model 0.0008 % NaCl at the LiCl·H2O + halite point against a few tenths of a per cent (LS65, from "
+    "memory, low confidence): ln gamma(Na) in 20 mol/kg LiCl is far too high. " + _LICL_BINARY))
+def test_licl_nacl_halite_in_saturated_licl():
+    iso = pk.isotherm(["LiCl", "NaCl"], temp_c=25)
+    for r in _check_rows("LiCl-NaCl").itertuples():
+        p = _point(iso, r.solids.split("+"))
+        # only the order of magnitude is recalled: within a factor 3 either way
+        assert r.mass_percent_2 / 3 <= p["NaCl_mass_percent"] <= 3 * r.mass_percent_2, r.source
+
+
+# ------------------------------------------------------------------ invented salar brine, evaporated
+def _brine():
+    row = BRINE.iloc[0]
+    ana = {s: float(row[s]) for s in ("Li", "Na", "K", "Mg", "Cl", "SO4")}
+    return pk.Brine.from_analysis(ana, units="mg/kg").balance(on="Cl")
+
+
+@pytest.fixture(scope="module")
+def salar_path():
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", pk.ValidityWarning)
+        return pk.evaporate(_brine(), temp_c=25, mode="fractional")
+
+
+@pytest.mark.validation
+def test_salar_brine_is_plausible():
+    # invented demo brine: near halite saturation, as salar brines are (common practice (no source))
+    b = _brine()
+    si = pk.default_model().saturation(b, 25)["saturation_index"]
+    assert abs(si["halite"]) < 0.05
+    assert (si.drop("halite") < 0).all()
+
+
+@pytest.mark.validation
+def test_salar_evaporation_halite_first(salar_path):
+    first = salar_path.first_solid
+    assert first["solid"] == "halite"
+    assert first["concentration_factor"] < 1.05
+
+
+@pytest.mark.validation
+def test_salar_evaporation_lithium_balance(salar_path):
+    model = pk.default_model()
+    li0 = float(salar_path.steps["Li"].iloc[0])
+    liquid = salar_path.steps["Li"] * salar_path.steps["liquid_water_kg"]
+    solids = sum(salar_path.precipitated[s] * model.solid_stoichiometry(s).get("Li", 0.0)
+                 for s in salar_path.precipitated.columns)
+    assert np.allclose(liquid + solids, li0, rtol=0, atol=1e-8)
+
+
+@pytest.mark.validation
+def test_salar_evaporation_lithium_concentrates_until_its_first_solid(salar_path):
+    loss = ion_loss_point(salar_path, "Li")
+    assert loss is not None and loss.solid in LI_SOLIDS
+    app = salar_path.events[salar_path.events["event"] == "appears"]
+    before = app[app["concentration_factor"] < loss.concentration_factor]
+    assert "halite" in set(before["solid"]) and not set(before["solid"]) & set(LI_SOLIDS)
+    steps = salar_path.steps[salar_path.steps["concentration_factor"] <= loss.concentration_factor * (1 + 1e-9)]
+    d_cf, d_li = np.diff(steps["concentration_factor"].to_numpy()), np.diff(steps["Li"].to_numpy())
+    assert np.all(d_li[d_cf > 0] > 0)  # rising with every step of evaporation (a phase change is recorded
+    assert np.all(np.abs(d_li[d_cf == 0]) < 1e-12)  # as two steps at the same concentration factor)
+    # no lithium lost before: the molality is the initial one times the concentration factor
+    li0 = float(salar_path.steps["Li"].iloc[0])
+    assert loss.molality == pytest.approx(li0 * loss.concentration_factor, rel=1e-8)
+    assert loss.fraction_in_liquid == pytest.approx(1.0, abs=1e-8)
+    # and beyond it the liquid holds less than all of the lithium
+    last = salar_path.steps.iloc[-1]
+    assert last["Li"] * last["liquid_water_kg"] < li0 * (1 - 1e-3)
