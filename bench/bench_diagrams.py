@@ -31,6 +31,9 @@ def main():
     pk.reciprocal_isotherm(25.0)
     t = median_time(lambda: pk.reciprocal_isotherm(25.0), repeat=3)
     print(f"{'reciprocal Na, K // Cl, SO4 at 25 °C (no target)':<58s} {t:>12.4g} s")
+    for temp in (25.0, 75.0):
+        t = median_time(lambda tc=temp: pk.reciprocal_isotherm(tc, anion="NO3"), repeat=3)
+        print(f"{f'reciprocal Na, K // Cl, NO3 at {temp:g} °C (no target)':<58s} {t:>12.4g} s")
     t = median_time(lambda: pk.seawater_isotherm(25.0), repeat=3)
     print(f"{'oceanic salts at halite saturation, 25 °C (no target)':<58s} {t:>12.4g} s")
 
