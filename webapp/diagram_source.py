@@ -1,6 +1,6 @@
 """Where the diagram view gets its diagrams and their figures: the library, once per
 (system, temperature) for the diagram and once per (system, temperature, coordinates, units)
-for its figure. Nothing is computed here.
+for its figure, each with the database chosen (:mod:`webapp.database`). Nothing is computed here.
 
 Library functions used (``phasekit.diagrams``, ``phasekit.plotting``): ``isotherm(salts, temp_c)``,
 ``reciprocal_isotherm(temp_c)``, ``seawater_isotherm(temp_c)``; ``ternary_figure``,
@@ -14,6 +14,7 @@ from __future__ import annotations
 import importlib
 from functools import lru_cache
 
+from webapp import database
 from webapp.systems import get_system
 
 
@@ -32,24 +33,27 @@ def library(module: str, name: str):
 
 
 @lru_cache(maxsize=96)
-def diagram(system_key: str, temp_c: float):
-    """The library's diagram of a system at a temperature (cached; errors are not cached)."""
+def diagram(system_key: str, temp_c: float, db_key: tuple = (database.EMBEDDED,)):
+    """The library's diagram of a system at a temperature with the database of ``db_key``
+    (:func:`webapp.database.key_of`; cached, errors are not cached)."""
     system = get_system(system_key)
+    model = database.model_by_key(db_key)
     if system.kind == "ternary":
-        return library("phasekit.diagrams", "isotherm")(list(system.salts), temp_c=temp_c)
+        return library("phasekit.diagrams", "isotherm")(list(system.salts), temp_c=temp_c, model=model)
     name = "reciprocal_isotherm" if system.kind == "reciprocal" else "seawater_isotherm"
-    return library("phasekit.diagrams", name)(temp_c=temp_c)
+    return library("phasekit.diagrams", name)(temp_c=temp_c, model=model)
 
 
 @lru_cache(maxsize=96)
-def base_figure(system_key: str, temp_c: float, coords: str, units: str) -> dict:
+def base_figure(system_key: str, temp_c: float, coords: str, units: str, db_key: tuple = (database.EMBEDDED,)) -> dict:
     """The library's figure of the diagram, as a plotly dictionary (cached)."""
     system = get_system(system_key)
-    result = diagram(system_key, temp_c)
+    result = diagram(system_key, temp_c, db_key)
+    model = database.model_by_key(db_key)
     if system.kind != "ternary":
-        fig = library("phasekit.plotting", "jaenecke_figure")(result)
+        fig = library("phasekit.plotting", "jaenecke_figure")(result, model=model)
     elif coords == "triangular":
-        fig = library("phasekit.plotting", "ternary_figure")(result)
+        fig = library("phasekit.plotting", "ternary_figure")(result, model=model)
     else:
-        fig = library("phasekit.plotting", "rectangular_figure")(result, units=units)
+        fig = library("phasekit.plotting", "rectangular_figure")(result, units=units, model=model)
     return fig.to_plotly_json()

@@ -10,7 +10,7 @@ from dash.exceptions import PreventUpdate
 
 from phasekit.errors import InputError, PhasekitError
 from phasekit.thermo.water import T_MAX_C, T_MIN_C
-from webapp import diagram_source, messages
+from webapp import database, database_view, diagram_source, messages
 from webapp.figures import diagram_figure
 from webapp.style import graph_config
 from webapp.systems import get_system, menu_options
@@ -47,7 +47,9 @@ def conditions(inputs: dict) -> html.Div:
                       dcc.Input(id="temp-text", value=inputs["temp_c"], type="text", debounce=True, inputMode="decimal",
                                 className="pk-field pk-field-short", name="temperature in °C"),
                       html.Span("°C")], className="pk-temp")], className="pk-cond pk-cond-temp"),
+        database_view.controls(inputs),
         html.Div(id="temp-msg", className="pk-cond-msg"),
+        html.Div(id="db-msg", className="pk-cond-msg", **{"aria-live": "polite"}),
         dcc.Store(id="temp-c", data=t0),
     ], className="pk-conditions")
 
@@ -66,6 +68,7 @@ def layout(inputs: dict) -> html.Div:
         html.Div(id="diagram-msg", **{"aria-live": "polite"}),
         dcc.Loading(dcc.Graph(id="diagram-graph", config=graph_config("phasekit-diagram"),
                               style={"height": "560px"}), type="circle", delay_show=150),
+        html.Div(id="diagram-db"),
         figure_buttons("diagram-graph"),
         html.Div(id="diagram-points"),
     ], className="pk-view")
@@ -86,16 +89,21 @@ def sync_temperature(slider, text):
     return t, no_update, t, None
 
 
-def update_diagram(system_key, temp_c, coords, units, brine, path):
-    """Callback: the library's diagram (cached per system and temperature) with the brine and its path."""
+def update_diagram(system_key, temp_c, coords, units, brine, path, db=None):
+    """Callback: the library's diagram (cached per system, temperature and database) with the brine and its path."""
     system = get_system(system_key)
     notes, result, base, points_view, store = [], None, None, None, {"tables": {}}
     if system.kind != "ternary" and coords == "rectangular":
         notes.append("This projection has one form (Jänecke coordinates); the coordinate choice applies to "
                      "the ternary systems.")
     try:
-        result = diagram_source.diagram(system.key, float(temp_c))
-        base = diagram_source.base_figure(system.key, float(temp_c), coords, units)
+        model = database.model_for(db)
+    except Exception as exc:
+        return no_update, messages.error(messages.describe(exc, "the database")), no_update, no_update, no_update
+    key = database.key_of(db)
+    try:
+        result = diagram_source.diagram(system.key, float(temp_c), key)
+        base = diagram_source.base_figure(system.key, float(temp_c), coords, units, key)
     except diagram_source.DiagramUnavailable as exc:
         notes.append(str(exc))
     except PhasekitError as exc:
@@ -107,9 +115,10 @@ def update_diagram(system_key, temp_c, coords, units, brine, path):
         path_data = {"steps": from_store(path["steps"]), "events": from_store(path["events"])}
     title = f"{system.label}, {float(temp_c):g} °C"
     try:
-        fig, more = diagram_figure(system, coords, units, base, brine, path_data, title)
+        fig, more = diagram_figure(system, coords, units, base, brine, path_data, title, model=model)
     except Exception as exc:
-        return no_update, messages.error(messages.describe(exc, "drawing the diagram")), no_update, no_update
+        return (no_update, messages.error(messages.describe(exc, "drawing the diagram")), no_update, no_update,
+                no_update)
     notes += more
     if result is not None:
         notes += [w for w in getattr(result, "warnings", [])]
@@ -129,7 +138,8 @@ def update_diagram(system_key, temp_c, coords, units, brine, path):
                     **{c: df[c].map(lambda s: " + ".join(s) if isinstance(s, tuple | list) else s)
                        for c in df.columns if df[c].dtype == object}))
     msg = html.Div([messages.note(n) for n in dict.fromkeys(notes)]) if notes else None
-    return fig, msg, points_view, store
+    store["database"] = model.label
+    return fig, msg, points_view, store, database.label_line(model, id="diagram-db-label")
 
 
 def register(app):
@@ -137,7 +147,7 @@ def register(app):
                  Output("temp-msg", "children"), Input("temp-slider", "value"), Input("temp-text", "value"),
                  prevent_initial_call=True)(sync_temperature)
     app.callback(Output("diagram-graph", "figure"), Output("diagram-msg", "children"),
-                 Output("diagram-points", "children"), Output("res-diagram", "data"),
+                 Output("diagram-points", "children"), Output("res-diagram", "data"), Output("diagram-db", "children"),
                  Input("system", "value"), Input("temp-c", "data"), Input("coords", "value"), Input("basis", "value"),
-                 Input("brine", "data"), Input("path-result", "data"))(update_diagram)
+                 Input("brine", "data"), Input("path-result", "data"), Input("database", "data"))(update_diagram)
 

@@ -42,9 +42,11 @@ def export_table(_clicks, sat, diagram, path, poly, ponds, brine, temp_c, leach=
     trig = ctx.triggered_id
     if not isinstance(trig, dict) or not (ctx.triggered and ctx.triggered[0].get("value")):
         raise PreventUpdate
-    tables = {}
+    tables, databases = {}, {}
     for store in (sat, diagram, path, poly, ponds, leach):
-        tables.update((store or {}).get("tables", {}))
+        for name, item in (store or {}).get("tables", {}).items():
+            tables[name] = item
+            databases[name] = (store or {}).get("database", "")
     item = tables.get(trig["table"])
     if item is None:
         raise PreventUpdate
@@ -53,7 +55,7 @@ def export_table(_clicks, sat, diagram, path, poly, ponds, brine, temp_c, leach=
     if trig["fmt"] == "csv":
         return dcc.send_data_frame(df.to_csv, base + ".csv", index=False)
     about = {"table": trig["table"], "brine": (brine or {}).get("name", ""), "temperature (°C)": temp_c,
-             "phasekit": pk.__version__}
+             "database": databases.get(trig["table"], ""), "phasekit": pk.__version__}
     return dcc.send_bytes(xlsx_bytes(df, trig["table"], about), base + ".xlsx")
 
 

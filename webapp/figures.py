@@ -10,7 +10,7 @@ import numpy as np
 import pandas as pd
 
 from phasekit.errors import PhasekitError
-from webapp import diagram_source
+from webapp import database, diagram_source
 from webapp.style import BRINE, GRID, INK, MUTED, PATH_END, axis, base_layout, solid_colour
 
 
@@ -22,12 +22,9 @@ def _list(v):
 UNIT_LABEL = {"mass_percent": "mass %", "g_per_100g_water": "g per 100 g water", "molality": "mol per kg water"}
 
 
-def overlay_coordinates(system, coords: str, units: str, df: pd.DataFrame) -> tuple[dict, list]:
-    """Plot coordinates of compositions (rows of molalities) on a diagram, by the library's projections,
-    and a hover text per row."""
-    import phasekit as pk
-
-    model = pk.default_model()
+def overlay_coordinates(system, coords: str, units: str, df: pd.DataFrame, model) -> tuple[dict, list]:
+    """Plot coordinates of compositions (rows of molalities) on a diagram, by the library's projections
+    with ``model`` (the database chosen), and a hover text per row."""
     if system.kind == "ternary":
         ternary_path = diagram_source.library("phasekit.plotting.overlay", "ternary_path")
         c = ternary_path(model, tuple(system.salts), df)
@@ -79,7 +76,7 @@ def _empty(system, coords: str, units: str, title: str) -> dict:
 
 
 def diagram_figure(system, coords: str, units: str, base: dict | None, brine=None, path=None,
-                   title: str = "") -> tuple[dict, list]:
+                   title: str = "", model=None) -> tuple[dict, list]:
     """The library's diagram figure with the brine (a star) and its path (line, phase changes as dots).
 
     Parameters
@@ -90,12 +87,17 @@ def diagram_figure(system, coords: str, units: str, base: dict | None, brine=Non
         ``{"name", "molalities"}``.
     path : dict, optional
         ``{"steps": DataFrame of molalities, "events": DataFrame}``.
+    model : Model, optional
+        The model of the database chosen (:func:`webapp.database.model_for`), for the projections;
+        the embedded database's by default.
 
     Returns
     -------
     (figure, notes)
     """
     notes: list[str] = []
+    if model is None:
+        model = database.model_for(None)
     if base is None:
         fig = _empty(system, coords, units, title)
     else:
@@ -104,12 +106,12 @@ def diagram_figure(system, coords: str, units: str, base: dict | None, brine=Non
     kind = "scatterternary" if system.kind == "ternary" and coords == "triangular" else "scatter"
     try:
         if path is not None and len(path["steps"]):
-            xy, _ = overlay_coordinates(system, coords, units, path["steps"])
+            xy, _ = overlay_coordinates(system, coords, units, path["steps"], model)
             fig["data"].append({"type": kind, "mode": "lines", "name": "path of the brine", **xy,
                                 "line": {"color": BRINE, "width": 3}, "hoverinfo": "skip"})
             ev = path["events"]
             if len(ev):
-                exy, text = overlay_coordinates(system, coords, units, ev)
+                exy, text = overlay_coordinates(system, coords, units, ev, model)
                 hover = [f"<b>{r['solid']} {r['event']}</b><br>concentration factor {r['concentration_factor']:.3g}, "
                          f"{r['temp_c']:.1f} °C<br>{t}" for r, t in zip(ev.to_dict("records"), text)]
                 fig["data"].append({"type": kind, "mode": "markers", "name": "phase changes", **exy,
@@ -117,7 +119,7 @@ def diagram_figure(system, coords: str, units: str, base: dict | None, brine=Non
                                     "marker": {"size": 9, "color": PATH_END, "line": {"color": "white", "width": 1}}})
         if brine is not None:
             df = pd.DataFrame([brine["molalities"]])
-            bxy, text = overlay_coordinates(system, coords, units, df)
+            bxy, text = overlay_coordinates(system, coords, units, df, model)
             name = brine.get("name") or "brine"
             fig["data"].append({"type": kind, "mode": "markers", "name": name, **bxy,
                                 "hovertext": [f"<b>{name}</b><br>{t}" for t in text], "hoverinfo": "text",

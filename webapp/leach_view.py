@@ -15,7 +15,8 @@ from dash import Input, Output, State, dcc, html, no_update
 
 from phasekit import kinetics as kin
 from phasekit.errors import InputError, PhasekitError
-from webapp import messages
+from phasekit.kinetics.saturation import EquilibriumSaturation
+from webapp import database, messages
 from webapp.style import GRID, axis, base_layout, graph_config, solid_colour
 from webapp.tables import export_buttons, figure_buttons, stored, table
 
@@ -67,6 +68,7 @@ def layout(_inputs: dict) -> html.Div:
         html.Div(id="leach-msg", **{"aria-live": "polite"}),
         dcc.Loading([
             html.P(id="leach-sentence", className="pk-sentence"),
+            html.Div(id="leach-db"),
             dcc.Graph(id="leach-graph", config=graph_config("phasekit-dissolution"), style={"height": "420px"},
                       figure=empty_figure()),
             html.Div(id="leach-summary"),
@@ -132,15 +134,19 @@ def read_inputs(values: dict) -> dict:
     return args
 
 
-def run_leach(args: dict, brine: dict | None, d50_um: float | None = None, temp_c: float | None = None):
-    """The library's leach with these arguments (optionally another grain size or temperature)."""
+def run_leach(args: dict, brine: dict | None, d50_um: float | None = None, temp_c: float | None = None,
+              model=None):
+    """The library's leach with these arguments (optionally another grain size or temperature), its driving
+    force from ``model`` (the database chosen; the embedded one by default)."""
+    model = model if model is not None else database.model_for(None)
     d50 = args["d50_um"] if d50_um is None else d50_um
     t = args["temp_c"] if temp_c is None else temp_c
     sizes = kin.lognormal(d50, args["gsd"])
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")  # the validity warnings are kept on the result and shown
         return kin.leach(args["ore_kg"], args["composition"], sizes, brine, residence_s=args["residence_s"],
-                         water_kg=args["water_kg"], temp_c=t, power_w_kg=args["power_w_kg"])
+                         water_kg=args["water_kg"], temp_c=t, power_w_kg=args["power_w_kg"],
+                         saturation=EquilibriumSaturation(model))
 
 
 # ----------------------------------------------------------------------------- the result
@@ -207,20 +213,21 @@ def leach_figure(curves: list[tuple[str, pd.DataFrame, str]], title: str) -> dic
     return {"data": data, "layout": lay}
 
 
-def update_leach(_run, pure_water, brine, *values):
+def update_leach(_run, pure_water, brine, db, *values):
     """Callback: run the leach. Returns (sentence, figure, summary, warnings, store, message, field messages...);
     on bad input the previous result is kept and the message is shown next to the field."""
     fields = dict(zip(FIELDS, values))
     n_fields = len(FIELDS)
     clear = (None,) * n_fields
-    keep = (no_update,) * 5
+    keep = (no_update,) * 6
     water_only = bool(pure_water)
     if not water_only and not (brine and brine.get("molalities")):
         return (*keep, messages.note("Enter a brine in the brine panel, or tick 'leach with pure water'."), *clear)
     leach_brine = None if water_only else brine["molalities"]
     try:
+        model = database.model_for(db)
         args = read_inputs(fields)
-        res = run_leach(args, leach_brine)
+        res = run_leach(args, leach_brine, model=model)
         curves = [("" if not (args["cmp-d50"] or args["cmp-temp"]) else
                    f"{args['d50_um']:g} µm, {args['temp_c']:g} °C", res.history, "solid")]
         other = None
@@ -228,7 +235,7 @@ def update_leach(_run, pure_water, brine, *values):
             d_o = args["cmp-d50"] if args["cmp-d50"] is not None else args["d50_um"]
             t_o = args["cmp-temp"] if args["cmp-temp"] is not None else args["temp_c"]
             try:
-                other = run_leach(args, leach_brine, d50_um=d_o, temp_c=t_o)
+                other = run_leach(args, leach_brine, d50_um=d_o, temp_c=t_o, model=model)
             except InputError as exc:  # a bad comparison is reported next to its own field
                 key = "cmp-temp" if field_of(exc) == "temp" else "cmp-d50"
                 raise InputError(FIELDS[key][0], exc.value, exc.expected) from None
@@ -258,16 +265,17 @@ def update_leach(_run, pure_water, brine, *values):
         summ = pd.concat([summ.assign(case=curves[0][0]), osumm.assign(case=curves[1][0])], ignore_index=True)
         hist = pd.concat([hist.assign(case=curves[0][0]), other.history.assign(case=curves[1][0])],
                          ignore_index=True)
-    store = {"tables": {"leach-summary": stored(summ), "leach-history": stored(hist)}}
+    store = {"tables": {"leach-summary": stored(summ), "leach-history": stored(hist)}, "database": model.label}
     warn = messages.warnings_box(list(res.warnings) + (list(other.warnings) if other is not None else []),
                                  "Validity of this leach")
-    return (sentence, fig, body, warn, store, None, *clear)
+    return (sentence, fig, body, warn, store, database.label_line(model, id="leach-db-label"), None, *clear)
 
 
 def register(app):
     app.callback(Output("leach-sentence", "children"), Output("leach-graph", "figure"),
                  Output("leach-summary", "children"), Output("leach-warn", "children"), Output("res-leach", "data"),
-                 Output("leach-msg", "children"), *[Output(f"leach-msg-{k}", "children") for k in FIELDS],
+                 Output("leach-db", "children"), Output("leach-msg", "children"), *[Output(f"leach-msg-{k}", "children") for k in FIELDS],
                  Input("leach-run", "n_clicks"), State("leach-pure-water", "value"), State("brine", "data"),
+                 State("database", "data"),
                  *[State(f"leach-{k}", "value") for k in FIELDS], prevent_initial_call=True)(update_leach)
 

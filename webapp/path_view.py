@@ -11,7 +11,7 @@ from dash import Input, Output, dcc, html, no_update
 
 import phasekit as pk
 from phasekit.errors import InputError, PhasekitError
-from webapp import messages
+from webapp import database, messages
 from webapp.diagram_view import parse_temperature
 from webapp.figures import sequence_figure
 from webapp.style import graph_config
@@ -47,6 +47,7 @@ def layout(inputs: dict) -> html.Div:
         html.Div(id="path-msg", **{"aria-live": "polite"}),
         dcc.Loading([
             html.P(id="path-sentence", className="pk-sentence"),
+            html.Div(id="path-db"),
             dcc.Graph(id="path-graph", config=graph_config("phasekit-sequence"), style={"height": "420px"}),
         ], type="circle", delay_show=150),
         figure_buttons("path-graph"),
@@ -59,17 +60,19 @@ def layout(inputs: dict) -> html.Div:
 
 
 @lru_cache(maxsize=32)
-def _run(key: tuple, process: str, mode: str, temp_c: float, start_c: float, end_c: float):
+def _run(key: tuple, process: str, mode: str, temp_c: float, start_c: float, end_c: float, db_key: tuple):
     brine = pk.Brine(dict(key))
+    model = database.model_by_key(db_key)
     if process == "evaporation":
-        return pk.evaporate(brine, temp_c=temp_c, mode=mode)
-    return pk.cool(brine, start_c=start_c, end_c=end_c, mode=mode)
+        return pk.evaporate(brine, temp_c=temp_c, mode=mode, model=model)
+    return pk.cool(brine, start_c=start_c, end_c=end_c, mode=mode, model=model)
 
 
-def run_path(molalities: dict, process: str, mode: str, temp_c: float, start_c=None, end_c=None):
-    """The library's path for this brine (cached for identical inputs)."""
+def run_path(molalities: dict, process: str, mode: str, temp_c: float, start_c=None, end_c=None, db=None):
+    """The library's path for this brine with the database ``db`` (cached for identical inputs)."""
+    database.model_for(db)
     key = tuple(sorted((k, float(v)) for k, v in molalities.items()))
-    return _run(key, process, mode, float(temp_c), start_c, end_c)
+    return _run(key, process, mode, float(temp_c), start_c, end_c, database.key_of(db))
 
 
 def first_solid_sentence(res, process: str, start_c=None) -> str:
@@ -105,11 +108,11 @@ def _events_view(ev: pd.DataFrame) -> pd.DataFrame:
                          "temperature (°C)": ev["temp_c"]})
 
 
-def update_path(brine, temp_c, process, mode, start_text, end_text, scale="linear"):
-    """Callback: run the path and draw it (the previous result is kept on any error)."""
+def update_path(brine, temp_c, process, mode, start_text, end_text, scale="linear", db=None):
+    """Callback: run the path with the database chosen and draw it (the previous result is kept on any error)."""
     keep = (no_update,) * 6
     if not brine:
-        return (*keep, messages.note("Enter a brine analysis to see its path."))
+        return (*keep, messages.note("Enter a brine analysis to see its path."), no_update)
     start = end = None
     try:
         if process == "cooling":
@@ -117,19 +120,22 @@ def update_path(brine, temp_c, process, mode, start_text, end_text, scale="linea
             end = parse_temperature(end_text, "cooling to")
             if end >= start:
                 raise InputError("cooling to", end_text, f"a temperature below the start, {start:g} °C")
-        res = run_path(brine["molalities"], process, mode, float(temp_c), start, end)
+        res = run_path(brine["molalities"], process, mode, float(temp_c), start, end, db)
+        model = database.model_for(db)
     except PhasekitError as exc:
         text = messages.describe(exc)
         if "electrically neutral" in text:
             text = ("The brine is not electrically neutral: balance it on an ion in the brine panel "
                     "(the model needs a neutral brine). " + text)
-        return (*keep, messages.error(text))
+        return (*keep, messages.error(text), no_update)
     except Exception as exc:
-        return (*keep, messages.error(messages.describe(exc, "the path")))
+        return (*keep, messages.error(messages.describe(exc, "the path")), no_update)
     try:
-        return _present(res, brine, process, mode, temp_c, start, scale)
+        out = _present(res, brine, process, mode, temp_c, start, scale)
     except Exception as exc:
-        return (*keep, messages.error(messages.describe(exc, "drawing the path")))
+        return (*keep, messages.error(messages.describe(exc, "drawing the path")), no_update)
+    out[0]["database"] = model.label
+    return (*out, database.label_line(model, id="path-db-label"))
 
 
 def _present(res, brine, process, mode, temp_c, start, scale):
@@ -174,7 +180,7 @@ def _present(res, brine, process, mode, temp_c, start, scale):
 def register(app):
     app.callback(Output("path-result", "data"), Output("path-sentence", "children"), Output("path-graph", "figure"),
                  Output("path-events", "children"), Output("path-summary", "children"), Output("path-warn", "children"),
-                 Output("path-msg", "children"),
+                 Output("path-msg", "children"), Output("path-db", "children"),
                  Input("brine", "data"), Input("temp-c", "data"), Input("path-process", "value"),
                  Input("path-mode", "value"), Input("cool-start", "value"), Input("cool-end", "value"),
-                 Input("path-scale", "value"))(update_path)
+                 Input("path-scale", "value"), Input("database", "data"))(update_path)

@@ -9,7 +9,7 @@ from dash.exceptions import PreventUpdate
 
 import phasekit as pk
 from phasekit.errors import InputError, PhasekitError
-from webapp import messages
+from webapp import database, messages
 from webapp.brine_view import row_keys
 from webapp.diagram_view import parse_temperature
 from webapp.figures import pond_figure
@@ -52,6 +52,7 @@ def layout(inputs: dict) -> html.Div:
         html.Div(id="pond-msg", **{"aria-live": "polite"}),
         dcc.Loading([
             html.Div(id="pond-summary"),
+            html.Div(id="pond-db"),
             dcc.Graph(id="pond-graph", config=graph_config("phasekit-ponds"), style={"height": "400px"}),
         ], type="circle", delay_show=150),
         figure_buttons("pond-graph"),
@@ -61,8 +62,10 @@ def layout(inputs: dict) -> html.Div:
     ], className="pk-view")
 
 
-def parse_ponds(rows: list[dict]) -> list:
-    """Ponds of the library from the rows of the table (text as typed)."""
+def parse_ponds(rows: list[dict], model=None) -> list:
+    """Ponds of the library from the rows of the table (text as typed); solids named as in ``model``'s
+    database (the embedded one by default)."""
+    model = model if model is not None else database.model_for(None)
     if not rows:
         raise InputError("ponds", "none", "at least one pond: press '+ add pond'")
     out, names = [], set()
@@ -79,7 +82,6 @@ def parse_ponds(rows: list[dict]) -> list:
             if not solids:
                 raise InputError(f"{label} end value", value, "the solid (or solids, comma separated) at whose "
                                                               "saturation the brine is passed on, e.g. 'halite'")
-            model = pk.default_model()
             solids = [model.solids.resolve(s) for s in solids]
             out.append(pk.Pond(name, t, until_saturated=solids))
             continue
@@ -98,29 +100,31 @@ def parse_ponds(rows: list[dict]) -> list:
     return out
 
 
-def run_train(molalities: dict, ponds: list):
-    """The library's pond train on this brine."""
-    return pk.pond_train(pk.Brine(molalities), ponds)
+def run_train(molalities: dict, ponds: list, model=None):
+    """The library's pond train on this brine (with ``model``, the embedded database by default)."""
+    return pk.pond_train(pk.Brine(molalities), ponds, model=model)
 
 
-def update_ponds(_run, tab, brine, names, temps, ends, values):
-    """Callback: run the pond train (when the view is shown; previous result kept on any error)."""
+def update_ponds(_run, tab, brine, db, names, temps, ends, values):
+    """Callback: run the pond train with the database chosen (when the view is shown; previous result kept
+    on any error)."""
     if tab != "ponds":
         raise PreventUpdate
     keep = (no_update,) * 5
     if not brine:
-        return (*keep, messages.note("Enter a brine analysis to run the pond train."))
+        return (*keep, messages.note("Enter a brine analysis to run the pond train."), no_update)
     rows = [{"name": n, "temp_c": t, "end": e, "value": v} for n, t, e, v in zip(names, temps, ends, values)]
     try:
-        ponds = parse_ponds(rows)
-        res = run_train(brine["molalities"], ponds)
+        model = database.model_for(db)
+        ponds = parse_ponds(rows, model)
+        res = run_train(brine["molalities"], ponds, model)
     except PhasekitError as exc:
         text = messages.describe(exc)
         if "electrically neutral" in text:
             text = "The brine is not electrically neutral: balance it on an ion in the brine panel. " + text
-        return (*keep, messages.error(text))
+        return (*keep, messages.error(text), no_update)
     except Exception as exc:
-        return (*keep, messages.error(messages.describe(exc, "the pond train")))
+        return (*keep, messages.error(messages.describe(exc, "the pond train")), no_update)
     first = next(iter(res.paths.values()))
     per_t = 1.0 / first.initial_solution_mass_kg  # kg of intake brine per kg of its water -> per tonne
     harvest = res.harvest.copy()
@@ -148,10 +152,11 @@ def update_ponds(_run, tab, brine, names, temps, ends, values):
     outflow = pd.DataFrame(out_rows)
     unreached = [p.name for p in ponds if p.name not in res.paths]
     note = (messages.note(f"The brine dried up before: {', '.join(unreached)}.") if unreached else None)
-    store = {"tables": {"ponds": stored(pond_view), "harvest": stored(hv), "outflow": stored(outflow)}}
+    store = {"tables": {"ponds": stored(pond_view), "harvest": stored(hv), "outflow": stored(outflow)},
+             "database": model.label}
     summary = [table(pond_view, id="pond-summary-table"), note]
     return (summary, fig, table(hv, id="pond-harvest-table"), table(outflow, id="pond-outflow-table", digits={}),
-            store, None)
+            store, None, database.label_line(model, id="pond-db-label"))
 
 
 def edit_rows(_add, _dels, names, temps, ends, values):
@@ -175,8 +180,8 @@ def register(app):
     fields = [State({"type": t, "row": ALL}, "value") for t in ("pond-name", "pond-temp", "pond-end", "pond-value")]
     app.callback(Output("pond-summary", "children"), Output("pond-graph", "figure"),
                  Output("pond-harvest", "children"), Output("pond-outflow", "children"), Output("res-ponds", "data"),
-                 Output("pond-msg", "children"),
-                 Input("pond-run", "n_clicks"), Input("views", "value"), Input("brine", "data"),
+                 Output("pond-msg", "children"), Output("pond-db", "children"),
+                 Input("pond-run", "n_clicks"), Input("views", "value"), Input("brine", "data"), Input("database", "data"),
                  *[Input(f.component_id, f.component_property) for f in fields])(update_ponds)
     app.callback(Output("pond-rows", "children", allow_duplicate=True), Input("pond-add", "n_clicks"),
                  Input({"type": "pond-del", "row": ALL}, "n_clicks"), *fields, prevent_initial_call=True)(edit_rows)

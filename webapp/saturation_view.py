@@ -7,7 +7,7 @@ from dash.exceptions import PreventUpdate
 
 import phasekit as pk
 from phasekit.errors import PhasekitError
-from webapp import messages
+from webapp import database, messages
 from webapp.tables import export_buttons, stored, table
 
 
@@ -18,28 +18,31 @@ def layout(inputs: dict) -> html.Div:
                "dissolve (negative: would have to crystallize) to reach saturation with it alone.", className="pk-hint"),
         html.Div(id="sat-msg", **{"aria-live": "polite"}),
         html.Div(id="sat-table"),
+        html.Div(id="sat-db"),
         export_buttons("saturation"),
         html.Div(id="sat-warn"),
     ], className="pk-view")
 
 
-def update_saturation(brine, temp_c, tab):
-    """Callback: saturation states of the brine at the working temperature (computed when shown)."""
+def update_saturation(brine, temp_c, tab, db=None):
+    """Callback: saturation states of the brine at the working temperature with the database chosen
+    (computed when shown)."""
     if tab != "saturation":
         raise PreventUpdate
     keep = (no_update,) * 3
     if not brine:
-        return (*keep, messages.note("Enter a brine analysis to see its saturation states."))
+        return (*keep, messages.note("Enter a brine analysis to see its saturation states."), no_update)
     try:
-        df = pk.default_model().saturation(pk.Brine(brine["molalities"]), float(temp_c))
+        model = database.model_for(db)
+        df = model.saturation(pk.Brine(brine["molalities"]), float(temp_c))
     except PhasekitError as exc:
         text = str(exc)
         if "electrically neutral" in text:
             text = ("The brine is not electrically neutral: balance it on an ion in the brine panel "
                     "(the model needs a neutral brine). " + text)
-        return (*keep, messages.error(text))
+        return (*keep, messages.error(text), no_update)
     except Exception as exc:
-        return (*keep, messages.error(messages.describe(exc, "the saturation states")))
+        return (*keep, messages.error(messages.describe(exc, "the saturation states")), no_update)
     view = df.reset_index().sort_values("saturation_index", ascending=False)
     warns = df.attrs.get("warnings", [])
     tab = table(view, id="sat-table-body", headers={
@@ -48,9 +51,12 @@ def update_saturation(brine, temp_c, tab):
         "can dissolve, g/kg water"}, digits={"saturation_index": 3},
         row_class=lambda r: f"pk-state-{r['state']}")
     head = html.P(f"{brine.get('name') or 'Brine'} at {float(temp_c):g} °C:", className="pk-hint")
-    return [head, tab], {"tables": {"saturation": stored(view)}}, messages.warnings_box(warns, "Validity"), None
+    store = {"tables": {"saturation": stored(view)}, "database": model.label}
+    return ([head, tab], store, messages.warnings_box(warns, "Validity"), None,
+            database.label_line(model, id="sat-db-label"))
 
 
 def register(app):
     app.callback(Output("sat-table", "children"), Output("res-sat", "data"), Output("sat-warn", "children"),
-                 Output("sat-msg", "children"), Input("brine", "data"), Input("temp-c", "data"), Input("views", "value"))(update_saturation)
+                 Output("sat-msg", "children"), Output("sat-db", "children"), Input("brine", "data"),
+                 Input("temp-c", "data"), Input("views", "value"), Input("database", "data"))(update_saturation)

@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import json
 
+from webapp import database
 from webapp.demo import demo_session
 from webapp.systems import SYSTEMS
 
@@ -96,6 +97,9 @@ def normalise(data) -> tuple[dict, list[str]]:
             ponds.append({"name": _text(r.get("name")), "temp_c": _text(r.get("temp_c")),
                           "end": _choice(r.get("end"), POND_ENDS, "until_saturated"), "value": _text(r.get("value"))})
     out["ponds"] = ponds[:20] if "ponds" in data else d["ponds"]
+    out["database"], note = database.valid_choice(data.get("database"))
+    if note:
+        notes.append(note)
     return out, notes
 
 

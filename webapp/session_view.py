@@ -6,7 +6,7 @@ from __future__ import annotations
 from dash import ALL, ClientsideFunction, Input, Output, State, dcc, html, no_update
 from dash.exceptions import PreventUpdate
 
-from webapp import brine_view, messages, pond_view, uploads
+from webapp import brine_view, database, messages, pond_view, uploads
 from webapp.demo import demo_session
 from webapp.diagram_view import parse_temperature
 from webapp.messages import UserInputProblem
@@ -34,6 +34,7 @@ def restore(request):
     source = request.get("source")
     if source == "demo" or not request.get("inputs"):
         inputs, notes = demo_session(), []
+        inputs["database"] = {**database.initial(), "upload": None}
         text = "Demo scenario loaded: the Saltmarsh Flats solar salt works (invented works, ponds and analyses)."
     else:
         inputs, notes = normalise(request["inputs"])
@@ -56,7 +57,12 @@ def restore(request):
         values[8] = brine_view.rows_children(values[8])
     if values[19] is not no_update:
         values[19] = pond_view.rows_children(values[19])
-    return (*values, inputs, msg)
+    db = inputs["database"]
+    if request.get("boot") and db["choice"] == database.initial()["choice"] and not db.get("upload"):
+        chooser = (no_update,) * 3  # as the page was built
+    else:
+        chooser = (database.options(db.get("upload")), db["choice"], db.get("upload"))
+    return (*values, *chooser, inputs, msg)
 
 
 def _fields(inputs: dict) -> list:
@@ -106,7 +112,8 @@ def register(app):
         Input("balance-on", "data"), Input("analyses", "data"), Input("path-process", "value"),
         Input("path-mode", "value"), Input("cool-start", "value"), Input("cool-end", "value"),
         Input("path-scale", "value"), Input("poly-tmin", "value"), Input("poly-tmax", "value"),
-        Input("poly-basis", "value"), *pond, prevent_initial_call=True,
+        Input("poly-basis", "value"), Input("db-choice", "value"), Input("db-upload", "data"), *pond,
+        prevent_initial_call=True,
     )
     app.callback(
         Output("system", "value"), Output("temp-text", "value", allow_duplicate=True),
@@ -116,7 +123,9 @@ def register(app):
         Output("balance-on", "data"), Output("analyses", "data"), Output("path-process", "value"),
         Output("path-mode", "value"), Output("cool-start", "value"), Output("cool-end", "value"),
         Output("path-scale", "value"), Output("poly-tmin", "value"), Output("poly-tmax", "value"), Output("poly-basis", "value"),
-        Output("pond-rows", "children", allow_duplicate=True), Output(STORE_ID, "data", allow_duplicate=True),
+        Output("pond-rows", "children", allow_duplicate=True),
+        Output("db-choice", "options", allow_duplicate=True), Output("db-choice", "value", allow_duplicate=True),
+        Output("db-upload", "data", allow_duplicate=True), Output(STORE_ID, "data", allow_duplicate=True),
         Output("session-msg", "children"),
         Input("restore-request", "data"), prevent_initial_call=True,
     )(restore)

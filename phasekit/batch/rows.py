@@ -16,6 +16,7 @@ bit for bit, whatever other rows share the chunk.
 from __future__ import annotations
 
 import hashlib
+import json
 import warnings
 from dataclasses import dataclass
 
@@ -56,6 +57,9 @@ class BatchSpec:
         error), or the name of an ion to increase.
     missing : str
         ``"error"`` or ``"zero"``: what an empty species cell means.
+    overlays : tuple of dict
+        Database overlays, as read by :func:`phasekit.overlay.read_overlay` (their content, not
+        their paths: a worker of a cluster need not see the caller's files).
     """
 
     units: str
@@ -65,9 +69,27 @@ class BatchSpec:
     density_column: str | None = None
     balance_on: str = "auto"
     missing: str = "error"
+    overlays: tuple = ()
 
 
 _FINGERPRINTS: dict = {}
+_MODELS: dict = {}
+
+
+def spec_model(spec: BatchSpec):
+    """The model of a batch run: the embedded database with the spec's overlays (built once per process)."""
+    from phasekit.model import default_model, load_model
+
+    if not spec.overlays:
+        return default_model()
+    key = json.dumps(list(spec.overlays), sort_keys=True, default=str)
+    model = _MODELS.get(key)
+    if model is None:
+        model = load_model(overlays=list(spec.overlays))
+        if len(_MODELS) >= 4:
+            _MODELS.clear()
+        _MODELS[key] = model
+    return model
 
 
 def database_fingerprint(model) -> str:
@@ -175,16 +197,14 @@ def _process_chunk(spec: BatchSpec, chunk: pd.DataFrame, model=None) -> pd.DataF
         Raw cells of the input table; the index holds the labels used in error messages
         (sample ids, or row numbers), unique within the run.
     model : Model, optional
-        The embedded database's model by default.
+        The model of the spec's overlays (:func:`spec_model`) by default.
 
     Returns
     -------
     pandas.DataFrame
         One row per input row, in order, columns :func:`output_columns`.
     """
-    from phasekit.model import default_model
-
-    model = model or default_model()
+    model = model or spec_model(spec)
     solids = list(model.solids.names)
     n = len(chunk)
     status = ["ok"] * n

@@ -21,7 +21,7 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
-from phasekit.batch.rows import BALANCE_POLICIES, BatchSpec, process_chunk
+from phasekit.batch.rows import BALANCE_POLICIES, BatchSpec, process_chunk, spec_model
 from phasekit.batch.source import MAX_INPUT_MB, plan_columns, read_source, row_labels
 from phasekit.chemistry.brine import Brine
 from phasekit.chemistry.species import parse_species
@@ -49,6 +49,8 @@ class BatchResult:
         Wall time of the run.
     executor : str
         Where it ran ("this process", "N local processes", "Dask at ADDRESS").
+    database : str
+        The database the rows were computed with ("embedded database" or its overlays).
     """
 
     table: pd.DataFrame
@@ -57,6 +59,7 @@ class BatchResult:
     warnings: list = field(default_factory=list)
     elapsed_s: float = 0.0
     executor: str = ""
+    database: str = "embedded database"
 
 
 def _temp(temp_c) -> float:
@@ -88,14 +91,18 @@ def check_balance_on(value) -> str:
 
 
 def prepare(source, units: str, temp_c: float, id_column=None, ignore_columns=(), density_column=None,
-            balance_on: str = "auto", missing: str = "error", max_input_mb: float = MAX_INPUT_MB, sheet=0):
+            balance_on: str = "auto", missing: str = "error", max_input_mb: float = MAX_INPUT_MB, sheet=0,
+            overlays=()):
     """Check the arguments and the table; return (spec, frame with row labels, warnings).
 
     Raises
     ------
     InputError
-        Bad units, temperature, policy, file or columns (before any row is computed).
+        Bad units, temperature, policy, file, columns or overlays (before any row is computed).
     """
+    from phasekit.overlay import read_overlay
+
+    parsed = tuple(o if isinstance(o, dict) else read_overlay(o) for o in overlays)
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
         Brine.from_analysis({"Na": 0.0}, units=units)  # the library's check (and message) of the units
@@ -109,7 +116,8 @@ def prepare(source, units: str, temp_c: float, id_column=None, ignore_columns=()
     frame = frame.copy()
     frame.index = pd.Index(labels, name="label")
     spec = BatchSpec(units=units.strip(), temp_c=t, species_columns=species, id_column=id_col,
-                     density_column=density_column, balance_on=policy, missing=missing)
+                     density_column=density_column, balance_on=policy, missing=missing, overlays=parsed)
+    spec_model(spec)  # an overlay that does not apply is refused here, not in every worker
     return spec, frame, notes
 
 
@@ -118,17 +126,16 @@ def chunks_of(frame: pd.DataFrame, chunk_rows: int) -> list[pd.DataFrame]:
     return [frame.iloc[a:a + chunk_rows] for a in range(0, len(frame), chunk_rows)]
 
 
-def _warm(temp_c: float) -> None:
-    """Load the model and its tables at ``temp_c`` once, before worker processes are forked."""
+def _warm(spec: BatchSpec) -> None:
+    """Load the model and its tables at the spec's temperature once, before worker processes are forked."""
     from phasekit.batch.onset import ln_saturation
-    from phasekit.model import default_model
 
-    model = default_model()
+    model = spec_model(spec)
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
         m = np.zeros((1, len(model.species)))
         m[0, model.index["Na"]] = m[0, model.index["Cl"]] = 1.0
-        ln_saturation(model, m, temp_c)
+        ln_saturation(model, m, spec.temp_c)
 
 
 def _init_worker() -> None:
@@ -144,7 +151,7 @@ def _run_here(spec, chunks, progress):
 
 
 def _run_pool(spec, chunks, workers, progress):
-    _warm(spec.temp_c)
+    _warm(spec)
     methods = mp.get_all_start_methods()
     ctx = mp.get_context("fork" if "fork" in methods else "spawn")
     out: list = [None] * len(chunks)
@@ -178,7 +185,7 @@ def _run_dask(spec, chunks, scheduler, progress):
         keys = [f"phasekit-batch-{token}-{i:06d}" for i in range(len(chunks))]
         futures = client.map(process_chunk, [spec] * len(chunks), chunks, key=keys)
         index = {f.key: i for i, f in enumerate(futures)}
-        for fut in dask_completed(futures):
+        for fut in dask_completed(futures, loop=getattr(client, "loop", None)):  # this client need not be the default
             progress(len(chunks[index[fut.key]]))
         return client.gather(futures)
     finally:
@@ -189,7 +196,7 @@ def _run_dask(spec, chunks, scheduler, progress):
 def run_batch(source, units: str, temp_c: float, *, id_column=None, ignore_columns=(), density_column=None,
               balance_on: str = "auto", missing: str = "error", workers: int = 1, scheduler=None,
               chunk_rows: int = DEFAULT_CHUNK_ROWS, max_input_mb: float = MAX_INPUT_MB, sheet=0,
-              progress=None) -> BatchResult:
+              progress=None, overlays=()) -> BatchResult:
     """Saturation states and first solid on evaporation of every analysis of a table.
 
     Parameters
@@ -216,6 +223,9 @@ def run_batch(source, units: str, temp_c: float, *, id_column=None, ignore_colum
         Refuse larger files.
     progress : callable, optional
         ``progress(n)`` after every chunk of ``n`` rows.
+    overlays : sequence of paths
+        Database overlays applied on top of the embedded database (:mod:`phasekit.overlay`). Their
+        content travels with every chunk, so workers of a cluster need not see the files.
 
     Returns
     -------
@@ -225,13 +235,14 @@ def run_batch(source, units: str, temp_c: float, *, id_column=None, ignore_colum
     Raises
     ------
     InputError
-        For the run as a whole (arguments, file, columns, scheduler address), before rows are computed.
+        For the run as a whole (arguments, file, columns, overlays, scheduler address), before rows are
+        computed.
     """
     t0 = time.perf_counter()
     workers = _count(workers, "workers")
     chunk_rows = _count(chunk_rows, "chunk_rows")
     spec, frame, notes = prepare(source, units, temp_c, id_column, ignore_columns, density_column, balance_on,
-                                 missing, max_input_mb, sheet)
+                                 missing, max_input_mb, sheet, overlays)
     chunks = chunks_of(frame, chunk_rows)
     tick = progress or (lambda n: None)
     if scheduler is not None:
@@ -246,9 +257,9 @@ def run_batch(source, units: str, temp_c: float, *, id_column=None, ignore_colum
     table = pd.concat(parts, ignore_index=True)
     warns = list(notes)
     from phasekit.batch.rows import database_fingerprint
-    from phasekit.model import default_model
 
-    here = database_fingerprint(default_model())
+    model = spec_model(spec)
+    here = database_fingerprint(model)
     theirs = sorted({p.attrs.get("database") for p in parts} - {here}, key=str)
     if theirs:
         warns.append(f"some workers computed with another phasekit version or database ({', '.join(map(str, theirs))}) "
@@ -258,4 +269,4 @@ def run_batch(source, units: str, temp_c: float, *, id_column=None, ignore_colum
         warns.extend(w for w in p.attrs.get("warnings", []) if w not in warns)
     table.attrs = {}
     n_failed = int((table["status"] == "error").sum())
-    return BatchResult(table, len(table), n_failed, warns, time.perf_counter() - t0, where)
+    return BatchResult(table, len(table), n_failed, warns, time.perf_counter() - t0, where, model.label)

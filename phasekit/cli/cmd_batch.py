@@ -26,18 +26,20 @@ def _batch(args) -> int:
     units = c.require_units(args)
     ignore = [s for s in args.ignore_columns.split(",") if s.strip()]
     raw = read_source(args.file, args.max_input_mb)  # a bad file stops here, before any worker starts
+    model = c.model_of(args)  # and so does a bad overlay
     bar = _progress_bar(len(raw), not args.no_progress)
     try:
         res = run_batch(raw, units, args.temp, id_column=args.id_column, ignore_columns=ignore,
                         density_column=args.density_column, balance_on=args.balance_on, missing=args.missing,
                         workers=args.workers, scheduler=args.scheduler, chunk_rows=args.chunk_rows,
-                        progress=(bar.update if bar is not None else None))
+                        progress=(bar.update if bar is not None else None), overlays=args.overlay or ())
     finally:
         if bar is not None:
             bar.close()
     table = res.table
     head = table.columns[0]
-    rep = c.Report(scalars={"rows": res.n_rows, "failed": res.n_failed, "units": args.units, "temp_c": args.temp},
+    rep = c.Report(scalars={"rows": res.n_rows, "failed": res.n_failed, "units": args.units, "temp_c": args.temp,
+                            "database": model.label},
                    tables={"results": table}, main="results", warnings=list(res.warnings),
                    table_columns={"results": [head, *SHOWN]})
     c.emit(rep, args)
@@ -46,8 +48,8 @@ def _batch(args) -> int:
     where = f"; written to {args.output}" if args.output else ""
     failed = (f"{res.n_failed} failed (kept in the output with status 'error' and the reason in 'error')"
               if res.n_failed else "none failed")
-    print(f"phasekit batch: {res.n_rows} rows, {ok} ok, {failed}; {res.elapsed_s:.1f} s on {res.executor}{where}",
-          file=sys.stderr)
+    print(f"phasekit batch: {res.n_rows} rows, {ok} ok, {failed}; {res.elapsed_s:.1f} s on {res.executor} with the "
+          f"{res.database}{where}", file=sys.stderr)
     return c.EXIT_ROWS_FAILED if res.n_failed else c.EXIT_OK
 
 
@@ -60,7 +62,8 @@ def register(sub) -> None:
                      "or on a Dask cluster (--scheduler), with the same result row for row.",
                      ["phasekit batch wells.csv --units mg/kg --temp 25 --output states.csv",
                       "phasekit batch wells.xlsx --units g/L --temp 30 --workers 2 --format xlsx -o states.xlsx",
-                      "phasekit batch wells.csv --units mg/kg --temp 25 --scheduler tcp://127.0.0.1:8786 -o out.csv"])
+                      "phasekit batch wells.csv --units mg/kg --temp 25 --scheduler tcp://127.0.0.1:8786 -o out.csv",
+                      "phasekit batch wells.csv --units mg/kg --temp 25 --overlay works_kcl.toml -o states.csv"])
     p.add_argument("file", help="CSV or XLSX table of analyses, one per row")
     p.add_argument("--units", metavar="UNITS", help=c.UNITS_HELP)
     c.add_temp(p)
@@ -83,5 +86,6 @@ def register(sub) -> None:
     g.add_argument("--chunk-rows", type=int, default=500, metavar="N", help="rows per task (default 500)")
     g.add_argument("--no-progress", action="store_true", help="no progress bar (none is shown when stderr is "
                    "not a terminal)")
+    c.add_overlay_option(p)
     c.add_output_options(p)
     p.set_defaults(func=_batch, returns_code=True)

@@ -12,10 +12,8 @@ def _head(brine, temp_c) -> dict:
 
 
 def _saturation(args) -> c.Report:
-    import phasekit as pk
-
     (brine,) = c.read_brines(args)
-    table = pk.default_model().saturation(brine, args.temp)
+    table = c.model_of(args).saturation(brine, args.temp)
     order = {"supersaturated": 0, "saturated": 1, "undersaturated": 2}
     if args.sort:
         table = table.sort_values("saturation_index", ascending=False)
@@ -46,10 +44,8 @@ def equilibrium_report(model, res, scalars: dict, extra: dict | None = None) -> 
 
 
 def _equilibrate(args) -> c.Report:
-    import phasekit as pk
-
     (brine,) = c.read_brines(args)
-    model = pk.default_model()
+    model = c.model_of(args)
     res = model.equilibrate(brine, args.temp)
     return equilibrium_report(model, res, _head(brine, args.temp))
 
@@ -63,6 +59,7 @@ def register(sub) -> None:
                       "phasekit saturation --input ponds.csv --row 'Heron-2' --units g/L --format json"])
     c.add_brine_options(p)
     c.add_temp(p)
+    c.add_overlay_option(p)
     p.add_argument("--sort", action="store_true", help="sort by saturation index, highest first")
     c.add_output_options(p, tables=("saturation", "brine"))
     p.set_defaults(func=_saturation)
@@ -74,5 +71,6 @@ def register(sub) -> None:
                       "phasekit equilibrate --salts NaCl=22,KCl=12 --units mass% --temp 20 --format json"])
     c.add_brine_options(p)
     c.add_temp(p)
+    c.add_overlay_option(p)
     c.add_output_options(p, tables=("solids", "liquid", "saturation"))
     p.set_defaults(func=_equilibrate)

@@ -54,6 +54,7 @@ def _split(text: str) -> list:
 
 def _isotherm(args) -> c.Report:
     exclude = _split(args.exclude)
+    model = c.model_of(args)
     if args.system == "ternary":
         if len(args.salts) != 2:
             from phasekit.errors import InputError
@@ -61,7 +62,7 @@ def _isotherm(args) -> c.Report:
             raise InputError("salts", args.salts, "two salts with one ion in common, e.g. NaCl KCl "
                                                   "(or --system reciprocal|seawater without salts)")
         res = diagram_function("isotherm")(list(args.salts), temp_c=args.temp, metastable=args.metastable,
-                                           exclude=exclude)
+                                           exclude=exclude, model=model)
         rep = diagram_report(res, {"salts": list(args.salts), "temp_c": args.temp,
                                    "stable_sequence": res.stable_sequence},
                              "invariant_points", ["invariant_points"])
@@ -72,13 +73,13 @@ def _isotherm(args) -> c.Report:
 
             raise InputError("salts", args.salts, f"no salts with --system {args.system} (its ions are fixed)")
         fn = diagram_function("reciprocal_isotherm" if args.system == "reciprocal" else "seawater_isotherm")
-        res = fn(args.temp, exclude=exclude)
+        res = fn(args.temp, exclude=exclude, model=model)
         rep = diagram_report(res, {"system": args.system, "temp_c": args.temp}, "invariant_points",
                              ["invariant_points"])
         figure = "save_jaenecke"
 
     def draw(path):
-        figure_function(figure)(res, path)
+        figure_function(figure)(res, path, model=model)
 
     rep.draw = draw
     return rep
@@ -86,13 +87,14 @@ def _isotherm(args) -> c.Report:
 
 def system_polytherm(args) -> c.Report:
     """Polytherm of a salt–salt–water system (``phasekit polytherm NaCl KCl ...``)."""
+    model = c.model_of(args)
     res = diagram_function("ternary_polytherm")(list(args.salt), t_min_c=args.t_from, t_max_c=args.t_to,
-                                                step_c=args.step)
+                                                step_c=args.step, model=model)
     rep = diagram_report(res, {"salts": list(args.salt), "t_min_c": args.t_from, "t_max_c": args.t_to,
                                "step_c": args.step}, "transitions", ["transitions", "binary_points"])
 
     def draw(path):
-        figure_function("save_polytherm")(res, path)
+        figure_function("save_polytherm")(res, path, model=model)
 
     rep.draw = draw
     return rep
@@ -116,6 +118,7 @@ def register(sub) -> None:
     p.add_argument("--exclude", default="", metavar="SOLID,...", help="solids left out (metastable diagrams)")
     p.add_argument("--diagram", choices=("triangle", "rectangular"), default="triangle",
                    help="figure of a ternary isotherm: triangle (mass %%, default) or rectangular (g per 100 g water)")
+    c.add_overlay_option(p)
     c.add_output_options(p, plot=True, tables=("invariant_points", "curves", "fields", "tie_lines", "solid_points",
                                                "side_points"))
     p.set_defaults(func=_isotherm)

@@ -2,11 +2,15 @@
 
 from __future__ import annotations
 
+import os
+from pathlib import Path
+
 import pandas as pd
 
 from phasekit.chemistry.species import is_species
 from phasekit.cli import common as c
 from phasekit.errors import InputError
+from phasekit.overlay import PARAM_KINDS, overlay_from_fit
 
 _NUMERIC = ("temp_c", "molality", "mass_percent", "grams_per_100g_water")
 
@@ -37,20 +41,75 @@ def parse_param(text: str) -> tuple:
     return parts
 
 
+def _check_save_path(args) -> Path | None:
+    """The --save-overlay file, refused before any work if it cannot be written or is an input."""
+    if not args.save_overlay:
+        if args.overlay_name or args.overlay_source:
+            raise InputError("--overlay-name", args.overlay_name or args.overlay_source,
+                             "--save-overlay FILE.toml with it (the file the fit is saved to)")
+        return None
+    target = Path(args.save_overlay)
+    if target.suffix.lower() != ".toml":
+        raise InputError("--save-overlay", args.save_overlay, "a file name ending in .toml")
+    if not target.resolve().parent.is_dir():
+        raise InputError("--save-overlay", args.save_overlay,
+                         f"a file in an existing directory ({target.resolve().parent} does not exist)")
+    inputs = [Path(f).resolve() for f in (args.overlay or [])] + [Path(args.data).resolve()]
+    if target.resolve() in inputs:
+        raise InputError("--save-overlay", args.save_overlay, "a file other than the inputs of the fit")
+    return target
+
+
+def _savable(specs) -> None:
+    """Only what an overlay file can hold: theta, psi and binary parameters with a coefficient a0..a4."""
+    for spec in specs:
+        if spec[0] not in PARAM_KINDS or spec[-1] == "cp":
+            raise InputError("--save-overlay", ":".join(spec), "a fit of theta, psi, beta0, beta1, beta2 or cphi "
+                             "coefficients a0..a4 (ln K terms are saved from a --solid fit)")
+
+
+def save_overlay(res, args, target: Path, data: pd.DataFrame) -> str:
+    """Write the fit as an overlay (checked by applying it before it replaces ``target``); its name."""
+    from phasekit.model import default_model
+
+    name = (args.overlay_name or target.stem).strip()
+    source = args.overlay_source or f"fitted in this project to {Path(args.data).name}"
+    temps = pd.to_numeric(data.get("temp_c"), errors="coerce") if "temp_c" in data else pd.Series(dtype=float)
+    t_range = (float(temps.min()), float(temps.max())) if temps.notna().any() else None
+    tmp = target.with_name(f".{target.name}.part")
+    try:
+        overlay_from_fit(res, tmp, name, source, solid=args.solid or None, t_range=t_range)
+        default_model().with_overlays(tmp)  # what is saved must apply
+        os.replace(tmp, target)
+    except OSError as exc:
+        raise InputError("--save-overlay", args.save_overlay, f"a file that can be written ({exc.strerror})") from None
+    finally:
+        tmp.unlink(missing_ok=True)
+    return name
+
+
 def _fit(args) -> c.Report:
     from phasekit import fitting
 
+    target = _check_save_path(args)
     data = _read_data(args.data)
     if bool(args.solid) == bool(args.param):
         raise InputError("--solid", args.solid, "either --solid NAME (fit its ln K) or --param SPEC ... (not both)")
+    model = c.model_of(args)
     if args.solid:
         terms = tuple(t.strip() for t in args.terms.split(",") if t.strip())
-        res = fitting.fit_ln_k(args.solid, data, terms=terms)
+        res = fitting.fit_ln_k(args.solid, data, terms=terms, model=model)
         head = {"fitted": f"ln K of {args.solid}", "terms": list(terms)}
     else:
-        res = fitting.fit_parameters([parse_param(p) for p in args.param], data, residual=args.residual)
+        specs = [parse_param(p) for p in args.param]
+        if target is not None:
+            _savable(specs)
+        res = fitting.fit_parameters(specs, data, model=model, residual=args.residual)
         head = {"fitted": "parameters", "residual": args.residual}
     head.update({"rms": res.rms, "n_points": res.n_points, "dof": res.dof})
+    if target is not None:
+        head["overlay_saved"] = str(target)
+        head["overlay_name"] = save_overlay(res, args, target, data)
     table = pd.DataFrame({"value": list(res.parameters.values()),
                           "stderr": [res.stderr.get(k) for k in res.parameters]},
                          index=pd.Index(list(res.parameters), name="parameter"))
@@ -68,7 +127,9 @@ def register(sub) -> None:
                      "or grams_per_100g_water.",
                      ["phasekit fit --solid sylvite --data kcl_solubility.csv --terms a0,a3,a4",
                       "phasekit fit --param theta:Na:K --param psi:Na:K:Cl --data nacl_kcl_25.csv --residual ln_m "
-                      "--format json"])
+                      "--format json",
+                      "phasekit fit --solid sylvite --data works_kcl.csv --save-overlay works_kcl.toml "
+                      "--overlay-name 'works KCl 2026'"])
     p.add_argument("--data", required=True, metavar="FILE", help="measurements, one saturated solution per row")
     p.add_argument("--solid", metavar="NAME", help="fit the ln K coefficients of this solid")
     p.add_argument("--terms", default="a0,a3,a4", metavar="a0,a3,a4",
@@ -76,5 +137,13 @@ def register(sub) -> None:
     p.add_argument("--param", action="append", metavar="SPEC", help="a parameter to fit, e.g. theta:Na:K (repeat)")
     p.add_argument("--residual", choices=("ln_k", "ln_m"), default="ln_k",
                    help="residual of --param fits: ln IAP - ln K (default) or its ln-molality equivalent")
+    c.add_overlay_option(p)
+    g = p.add_argument_group("saving the fit")
+    g.add_argument("--save-overlay", metavar="FILE.toml", help="save the fitted values as a database overlay, "
+                   "to use with --overlay in any command")
+    g.add_argument("--overlay-name", metavar="NAME", help="name of the saved overlay (default: the file name "
+                   "without .toml); it names the database on every result")
+    g.add_argument("--overlay-source", metavar="TEXT", help="source written with the values (default: 'fitted in "
+                   "this project to DATA-FILE')")
     c.add_output_options(p, tables=("parameters", "residuals", "covariance"))
     p.set_defaults(func=_fit)

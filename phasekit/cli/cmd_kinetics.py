@@ -13,6 +13,7 @@ def _fractions(text: str) -> dict:
 
 def _leach(args) -> c.Report:
     from phasekit import kinetics as kin
+    from phasekit.kinetics.saturation import EquilibriumSaturation
 
     brine = None
     if args.brine or args.salts or args.input:
@@ -21,7 +22,7 @@ def _leach(args) -> c.Report:
         raise InputError("--d50", None, "the median grain size in µm, e.g. --d50 400")
     sizes = kin.lognormal(args.d50, args.gsd)
     res = kin.leach(args.ore_kg, _fractions(args.ore), sizes, brine, residence_s=args.time, water_kg=args.water_kg,
-                    temp_c=args.temp, power_w_kg=args.power)
+                    temp_c=args.temp, power_w_kg=args.power, saturation=EquilibriumSaturation(c.model_of(args)))
     scalars = {"temp_c": args.temp, "ore_kg": args.ore_kg, "water_kg": args.water_kg, "d50_um": args.d50,
                "power_w_kg": args.power, "residence_s": args.time}
     for solid in res.summary.index:
@@ -70,5 +71,6 @@ def register(sub) -> None:
     p.add_argument("--time", type=float, required=True, metavar="s", help="residence time, s")
     c.add_temp(p)
     c.add_brine_options(p)
+    c.add_overlay_option(p)
     c.add_output_options(p, plot=True, tables=("summary", "history"))
     p.set_defaults(func=_leach)

@@ -37,7 +37,7 @@ def _evaporate(args) -> c.Report:
 
     (brine,) = c.read_brines(args)
     res = pk.evaporate(brine, temp_c=args.temp, mode=args.mode, water_removed=args.water_removed,
-                       concentration_factor=args.cf)
+                       concentration_factor=args.cf, model=c.model_of(args))
     return _path_report(res, {"temp_c": args.temp}, "concentration_factor",
                         f"Isothermal evaporation at {args.temp:g} °C ({args.mode})")
 
@@ -46,7 +46,7 @@ def _cool(args) -> c.Report:
     import phasekit as pk
 
     (brine,) = c.read_brines(args)
-    res = pk.cool(brine, start_c=args.start, end_c=args.end, mode=args.mode)
+    res = pk.cool(brine, start_c=args.start, end_c=args.end, mode=args.mode, model=c.model_of(args))
     verb = "Cooling" if args.end < args.start else "Heating"
     return _path_report(res, {"start_c": args.start, "end_c": args.end}, "temp_c",
                         f"{verb} from {args.start:g} to {args.end:g} °C ({args.mode})")
@@ -57,8 +57,8 @@ def _mix(args) -> c.Report:
     from phasekit.cli.cmd_brine import equilibrium_report
 
     a, b = c.read_brines(args, count=2)
-    model = pk.default_model()
-    res = pk.mix(a, b, ratio=args.ratio, temp_c=args.temp)
+    model = c.model_of(args)
+    res = pk.mix(a, b, ratio=args.ratio, temp_c=args.temp, model=model)
     return equilibrium_report(model, res, {"temp_c": args.temp, "mass_fraction_a": args.ratio},
                               extra={"mixture": c.brine_table(res.mixture)})
 
@@ -132,7 +132,7 @@ def _ponds(args) -> c.Report:
     if bool(args.pond) == bool(args.ponds):
         raise InputError("--pond", None, "the ponds: --pond '...' once per pond, or --ponds FILE.csv (not both)")
     ponds = [parse_pond(t, i) for i, t in enumerate(args.pond)] if args.pond else read_ponds_file(args.ponds)
-    res = pk.pond_train(brine, [pk.Pond(**p) for p in ponds])
+    res = pk.pond_train(brine, [pk.Pond(**p) for p in ponds], model=c.model_of(args))
     scalars = {"ponds": [p["name"] for p in ponds], "outflow_charge_balance_percent": res.outflow.charge_balance()}
     return c.Report(scalars=scalars, tables={"ponds": res.ponds, "harvest": res.harvest,
                                              "outflow": c.brine_table(res.outflow)}, main="ponds",
@@ -154,6 +154,7 @@ def register(sub) -> None:
     p.add_argument("--water-removed", type=float, default=1.0, metavar="FRACTION",
                    help="largest fraction of the initial water to evaporate (default 1: to the end point)")
     p.add_argument("--cf", type=float, metavar="CF", help="stop at this concentration factor")
+    c.add_overlay_option(p)
     c.add_output_options(p, plot=True, tables=PATH_TABLES)
     p.set_defaults(func=_evaporate)
 
@@ -167,6 +168,7 @@ def register(sub) -> None:
     c.add_temp(p, None, "--end", "final temperature, °C")
     p.add_argument("--mode", choices=("equilibrium", "fractional"), default="equilibrium",
                    help="equilibrium (solids stay, default) or fractional (harvested as they form)")
+    c.add_overlay_option(p)
     c.add_output_options(p, plot=True, tables=PATH_TABLES)
     p.set_defaults(func=_cool)
 
@@ -180,6 +182,7 @@ def register(sub) -> None:
     c.add_temp(p)
     p.add_argument("--ratio", type=float, required=True, metavar="FRACTION",
                    help="mass fraction of brine A in the mixture, 0..1")
+    c.add_overlay_option(p)
     c.add_output_options(p, tables=("solids", "mixture", "liquid", "saturation"))
     p.set_defaults(func=_mix)
 
@@ -195,5 +198,6 @@ def register(sub) -> None:
     p.add_argument("--pond", action="append", metavar="SPEC",
                    help="one pond: 'name=...;temp=°C;cf=...|water_removed=...|until=SOLID[+SOLID][;mode=...]'")
     p.add_argument("--ponds", metavar="FILE", help="a CSV of ponds, one per row, in order")
+    c.add_overlay_option(p)
     c.add_output_options(p, tables=("ponds", "harvest", "outflow"))
     p.set_defaults(func=_ponds)

@@ -8,7 +8,7 @@ from phasekit.cli import common as c
 def _solubility(args) -> c.Report:
     import phasekit as pk
 
-    r = pk.solubility(args.salt, args.temp)
+    r = pk.solubility(args.salt, args.temp, model=c.model_of(args))
     scalars = {"salt": r.salt, "solid": r.solid, "temp_c": r.temp_c, "molality": r.molality,
                "grams_per_100g_water": r.grams_per_100g_water, "mass_percent": r.mass_percent,
                "water_activity": r.water_activity}
@@ -23,7 +23,7 @@ def _polytherm(args) -> c.Report:
 
         return system_polytherm(args)
     salt = args.salt[0]
-    curve, transitions = pk.polytherm(salt, args.t_from, args.t_to, args.step)
+    curve, transitions = pk.polytherm(salt, args.t_from, args.t_to, args.step, model=c.model_of(args))
     rep = c.Report(scalars={"salt": salt, "t_min_c": args.t_from, "t_max_c": args.t_to, "step_c": args.step},
                    tables={"curve": curve, "transitions": transitions}, main="curve",
                    warnings=list(curve.attrs.get("warnings", [])))
@@ -45,6 +45,7 @@ def register(sub) -> None:
                       "phasekit solubility Na2SO4 --temp 20"])
     p.add_argument("salt", help="salt formula (KCl, Na2SO4, MgSO4) or a solid (thenardite)")
     c.add_temp(p)
+    c.add_overlay_option(p)
     c.add_output_options(p)
     p.set_defaults(func=_solubility)
 
@@ -61,6 +62,7 @@ def register(sub) -> None:
     p.add_argument("--to", dest="t_to", type=float, default=100.0, metavar="°C", help="highest temperature "
                    "(default 100)")
     p.add_argument("--step", type=float, default=1.0, metavar="°C", help="grid step (default 1)")
+    c.add_overlay_option(p)
     c.add_output_options(p, plot=True, tables=("curve", "transitions", "invariant_points", "curves",
                                                "binary_points"))
     p.set_defaults(func=_polytherm)

@@ -102,6 +102,37 @@ def add_brine_options(p, many: bool = False) -> None:
                    "is short; none refuses an unbalanced analysis. The adjustment is reported as a warning")
 
 
+def add_overlay_option(p) -> None:
+    """--overlay FILE (repeatable): the user's own fitted values on top of the embedded database."""
+    g = p.add_argument_group("database")
+    g.add_argument("--overlay", action="append", metavar="FILE",
+                   help="a database overlay (TOML of your own fitted values, see phasekit.overlay) applied on top "
+                   "of the embedded database; repeat for several (overlays in conflict are refused)")
+
+
+def model_of(args):
+    """The model of a command line: the embedded database with its ``--overlay`` files applied (once).
+
+    Raises
+    ------
+    InputError
+        A missing or invalid overlay file, an overlay naming a solid or species that does not exist,
+        or overlays in conflict.
+    """
+    model = getattr(args, "model_", None)
+    if model is None:
+        from phasekit.model import load_model
+
+        files = list(getattr(args, "overlay", None) or [])
+        try:
+            model = load_model(overlays=files)
+        except InputError as err:
+            field_name = "--overlay" if err.field in ("overlay", "overlays") else err.field
+            raise type(err)(field_name, err.value, err.expected) from None
+        args.model_ = model
+    return model
+
+
 def add_temp(p, default: float | None = 25.0, name: str = "--temp", help_text: str = "temperature, °C") -> None:
     if default is None:
         p.add_argument(name, type=float, required=True, metavar="°C", help=help_text)
@@ -332,6 +363,8 @@ def emit(report: Report, args) -> None:
             df = pd.DataFrame([{k: _plain(v) for k, v in report.scalars.items()}])
         else:
             df = report.tables[name]
+            if "database" in report.scalars and "database" not in df.columns:
+                df = df.assign(database=report.scalars["database"])  # csv has no other place for it
         keep_index = df.index.name is not None or not isinstance(df.index, pd.RangeIndex)
         payload = df.to_csv(index=keep_index, float_format=None)
     elif fmt == "json":

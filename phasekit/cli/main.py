@@ -103,6 +103,8 @@ def main(argv: list[str] | None = None) -> int:
                 code = int(result)
             else:
                 report = result
+                if hasattr(args, "overlay"):  # the database in use is named on every result
+                    report.scalars.setdefault("database", c.model_of(args).label)
                 report.warnings = list(dict.fromkeys(list(args.notes) + list(report.warnings)))
                 c.emit(report, args)
                 code = c.EXIT_OK

@@ -12,15 +12,20 @@ from pkapp import ARGS, CHROMIUM, free_port, wait_for, wait_ready
 
 
 @pytest.fixture(scope="session")
-def app_url():
-    """The app, served on 127.0.0.1 in a thread (werkzeug), shut down after the session."""
+def app_url(test_overlays):
+    """The app, served on 127.0.0.1 in a thread (werkzeug), shut down after the session; its Database menu
+    offers the test overlay "plus" (invented: sylvite's ln K at 25 °C + 0.2, tests/conftest.py)."""
     import logging
 
     from werkzeug.serving import make_server
 
+    from webapp import database
     from webapp.app import create_app, warm_up
 
     logging.getLogger("werkzeug").setLevel(logging.ERROR)
+    # one overlay offered in the Database menu, as 'phasekit app --overlay FILE' does; a new browser
+    # still starts on the embedded database (use=False), so the other tests see the embedded numbers
+    database.configure([test_overlays["plus"]], use=False)
     warm_up()
     app = create_app()
     port = free_port()

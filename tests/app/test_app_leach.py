@@ -23,8 +23,9 @@ def _values(**changed):
 
 def test_leach_callback_result_and_bad_input():
     keys = list(leach_view.FIELDS)
-    out = leach_view.update_leach(1, ["water"], None, *_values())
-    sentence, fig, _summary, _warn, store, msg, *field_msgs = out
+    out = leach_view.update_leach(1, ["water"], None, None, *_values())  # no database chosen: the embedded one
+    sentence, fig, _summary, _warn, store, db_line, msg, *field_msgs = out
+    assert db_line.children[1].children == store["database"] == "embedded database"
     assert sentence.startswith("98 % of the sylvite dissolves in ") and "halite" in sentence
     assert {t["name"] for t in fig["data"] if t.get("showlegend", True)} == {"sylvite", "halite"}
     assert "sylvite_dissolved_fraction" in store["tables"]["leach-history"]["columns"]
@@ -33,9 +34,9 @@ def test_leach_callback_result_and_bad_input():
     # fractions over 1, text, a negative size: message next to the field, previous result kept
     for key, text, expected in (("ore", "sylvite 0.5, halite 0.6", "sum to at most 1"),
                                 ("ore-kg", "lots", "a number"), ("d50", "-400", "> 0")):
-        out = leach_view.update_leach(1, ["water"], None, *_values(**{key: text}))
-        assert all(o is leach_view.no_update for o in out[:5])
-        msg = out[6 + keys.index(key)]
+        out = leach_view.update_leach(1, ["water"], None, None, *_values(**{key: text}))
+        assert all(o is leach_view.no_update for o in out[:6])
+        msg = out[7 + keys.index(key)]
         assert msg is not None and expected in str(msg) and "previous result is kept" in str(msg)
 
 

@@ -2,6 +2,7 @@
 
 import os
 import warnings
+from pathlib import Path
 
 import numpy as np
 import pandas as pd
@@ -197,6 +198,32 @@ def test_dask_local_cluster_gives_the_local_result(tmp_path):
     pd.testing.assert_frame_equal(local.table, by_address.table, check_exact=True)
     assert local.table.to_csv() == by_address.table.to_csv()
     assert by_address.executor.startswith("Dask at tcp://127.0.0.1:")
+
+
+def test_overlay_content_travels_to_dask_workers(tmp_path, test_overlays):
+    distributed = pytest.importorskip("dask.distributed")
+    path = _csv(tmp_path, GOOD)
+    # an overlay in a directory that is removed before the run: the workers get its content, not its path
+    ov_dir = tmp_path / "overlays"
+    ov_dir.mkdir()
+    ov = ov_dir / "plus.toml"
+    ov.write_text(Path(test_overlays["plus"]).read_text())  # sylvite's ln K at 25 °C + 0.2 (tests/conftest.py)
+    from phasekit.batch import prepare
+
+    spec, _, _ = prepare(path, "mg/kg", 25.0, overlays=[ov])
+    ov.unlink()
+    base = run_batch(path, "mg/kg", 25.0, chunk_rows=1)
+    local = run_batch(path, "mg/kg", 25.0, chunk_rows=1, overlays=list(spec.overlays))
+    with distributed.LocalCluster(n_workers=2, threads_per_worker=1, processes=False, protocol="tcp://",
+                                  host="127.0.0.1", dashboard_address=None) as cl:
+        remote = run_batch(path, "mg/kg", 25.0, chunk_rows=1, overlays=list(spec.overlays),
+                           scheduler=cl.scheduler_address)
+    pd.testing.assert_frame_equal(local.table, remote.table, check_exact=True)
+    assert local.database == remote.database == "embedded database + overlay test sylvite +0.2"
+    assert base.database == "embedded database"
+    shift = (local.table["si_sylvite"] - base.table["si_sylvite"]).to_numpy(float)
+    assert np.allclose(shift, -0.2 / np.log(10), atol=1e-9)
+    assert not any("another phasekit version" in w for w in remote.warnings)
 
 
 # ------------------------------------------------------------------------------ bad input

@@ -209,9 +209,12 @@ def test_app_subcommand_starts_the_web_app(capsys, monkeypatch):
     import webapp.app
 
     seen = {}
-    monkeypatch.setattr(webapp.app, "run", lambda host, port: seen.update(host=host, port=port))
+    monkeypatch.setattr(webapp.app, "run", lambda host, port, overlays=(): seen.update(host=host, port=port,
+                                                                                       overlays=overlays))
     assert main(["app", "--port", "8123"]) == 0
-    assert seen == {"host": "127.0.0.1", "port": 8123}
+    assert seen == {"host": "127.0.0.1", "port": 8123, "overlays": []}
+    assert main(["app", "--overlay", "a.toml", "--overlay", "b.toml"]) == 0
+    assert seen["overlays"] == ["a.toml", "b.toml"]
 
 
 # ------------------------------------------------------------------------------ batch
@@ -331,7 +334,7 @@ def test_not_available_exit_4(capsys, monkeypatch):
 
 
 def test_internal_error_is_one_line_exit_5(capsys, monkeypatch):
-    def broken(salt, temp_c):
+    def broken(salt, temp_c, model=None):
         raise TypeError("unexpected")
 
     monkeypatch.setattr(pk, "solubility", broken)

@@ -2,8 +2,9 @@
 
 Source: Greenspan 1977, "Humidity fixed points of binary saturated aqueous solutions", J. Res. Natl.
 Bur. Stand. 81A, 89-96, Table 2 (equilibrium relative humidity, %; from memory). None of these values
-was used in a fit, except LiCl at 25 °C (scripts/fit_licl_concentrated.py), which is left out here
-(tests/validation/test_lithium.py checks LiCl at 20, 30 and 40 °C). The model's value is the water
+was used in a fit, except LiCl and NaNO3 at 25 °C (scripts/fit_concentrated_binaries.py fitted their
+25 °C parameters to them), which are left out here (tests/validation/test_lithium.py checks LiCl at 20, 30
+and 40 °C). The model's value is the water
 activity of its own saturated solution (pk.solubility(...).water_activity): it tests the activity model
 where the solubility fits leave it free, since those fit ln K and the Pitzer temperature terms to the
 saturated molalities only.
@@ -37,7 +38,6 @@ CASES = [
     pytest.param("KCl", 60, 80.25, marks=pytest.mark.xfail(strict=True, reason=HIGH_T)),
     pytest.param("KCl", 70, 79.49, marks=pytest.mark.xfail(strict=True, reason=HIGH_T)),
     pytest.param("KCl", 80, 78.90, marks=pytest.mark.xfail(strict=True, reason=HIGH_T)),
-    ("NaNO3", 25, 74.25),
     pytest.param("KNO3", 25, 93.58, marks=pytest.mark.xfail(strict=True, reason=(
         "model 92.58 %: the model follows the Robinson & Stokes osmotic coefficients of KNO3 (phi about 0.56 "
         "near 3.5 mol/kg, from memory), with which a_w of the 3.79 mol/kg saturated solution (CRC 27.7 %) is "

@@ -12,7 +12,7 @@ Which data fitted what
   (``role=check``), never the fit point.
 * Water activity of saturated LiCl: Greenspan 1977, J. Res. Natl. Bur. Stand. 81A, 89 (relative humidity
   over saturated salt solutions; from memory): 11.31 % (20 °C), 11.30 % (25 °C), 11.28 % (30 °C),
-  11.21 % (40 °C). The 25 °C value fitted the 25 °C Li-Cl parameters (``scripts/fit_licl_concentrated.py``,
+  11.21 % (40 °C). The 25 °C value fitted the 25 °C Li-Cl parameters (``scripts/fit_concentrated_binaries.py``,
   with Pitzer & Mayorga 1973's own phi and ln gamma to 6 mol/kg); 20, 30 and 40 °C are the checks (their
   temperature dependence comes from SP77's slopes and the LiCl·H2O solubility fit, not from Greenspan).
 
@@ -28,7 +28,7 @@ First finding, resolved: the Pitzer & Mayorga 1973 Li-Cl parameters (fitted to 6
 20 mol/kg of saturated LiCl gave an osmotic coefficient of about 5.1 instead of 3.0 (a_w 0.025 against
 0.113); the LiCl·H2O ln K fitted to the solubilities absorbed it for the pure salt but not in mixtures.
 The Li-Cl parameters are now fitted to saturation in the two-alpha form of B (see
-``scripts/fit_licl_concentrated.py``): a_w of saturated LiCl is right at 20-40 °C and the LiCl-MgCl2 check
+``scripts/fit_concentrated_binaries.py``): a_w of saturated LiCl is right at 20-40 °C and the LiCl-MgCl2 check
 point is within its tolerance. What remains: the LiCl-NaCl and Li2SO4-K2SO4 checks (reasons beside them);
 no theta(Li,Mg) or psi with lithium and Mg or sulfate is known to us (all zero).
 """

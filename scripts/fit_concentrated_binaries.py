@@ -1,7 +1,12 @@
-"""Li–Cl Pitzer parameters valid up to the saturated solution (about 20 mol/kg at 25 °C).
+"""25 °C Pitzer parameters of LiCl and NaNO3 valid up to their saturated solutions.
 
-    python scripts/fit_licl_concentrated.py            # rewrite the 25 °C values (a0) of the Li-Cl rows
-    python scripts/fit_licl_concentrated.py --dry-run  # fit and report only
+    python scripts/fit_concentrated_binaries.py            # rewrite the 25 °C values (a0) of their rows
+    python scripts/fit_concentrated_binaries.py --dry-run  # fit and report only
+
+Run scripts/calibrate_solids.py afterwards (it refits the temperature terms and ln K with these values).
+
+LiCl
+----
 
 Why: Pitzer & Mayorga 1973 (PM73) fitted β0, β1, C^φ of LiCl to 6 mol/kg. Extrapolated to the saturated
 solution (19.9 mol/kg at 25 °C) they give a water activity of 0.025 where Greenspan 1977 (J. Res. NBS 81A,
@@ -19,7 +24,14 @@ Activity Coefficients in Electrolyte Solutions, ch. 3: B = β0 + β1 g(α1 √I)
 The result stays within 0.01 of PM73's φ to 6 mol/kg and within 1.1 % of the Robinson & Stokes γ±
 (the check in tests/validation/test_single_salts.py). The temperature coefficients (a1) of the rows
 are not touched: β1, C^φ keep SP77's, β0's is refitted by scripts/calibrate_solids.py to the LiCl·H2O
-solubilities (run it after this script), β2 and α2 have none.
+solubilities, β2 and α2 have none.
+
+NaNO3
+-----
+PM73 fitted NaNO3 to 6 mol/kg; the saturated solution at 25 °C is 10.73 mol/kg (CRC 47.7 %). There PM73
+give φ = 0.733 where Greenspan's a_w = 0.7425 of saturated NaNO3 gives 0.770, and the solubilities at
+10-30 °C (checks) came out 2.5-3.3 % high. The plain three-parameter form follows both (φ within 0.004
+of PM73 to 6 mol/kg, 0.766 at saturation): β0, β1, C^φ fitted the same way (α2 unused).
 """
 
 from __future__ import annotations
@@ -39,9 +51,13 @@ sys.path.insert(0, str(ROOT))
 from phasekit.chemistry.species import M_WATER  # noqa: E402
 from phasekit.thermo.water import aphi as a_phi  # noqa: E402
 
-PM73 = (0.1494, 0.3074, 0.0, 0.00359)  # beta0, beta1, beta2, C^phi of LiCl at 25 degC
-B, ALPHA1, ALPHA2 = 1.2, 2.0, 0.3
-M_SAT, AW_SAT = 19.9, 0.113  # saturated LiCl at 25 degC: molality (CRC 45.8 %), a_w (Greenspan 1977)
+B, ALPHA1 = 1.2, 2.0
+#: salt: (cation, anion, PM73 beta0, beta1, beta2, C^phi at 25 degC, alpha2 (0: unused), saturated molality at
+#: 25 degC (CRC Handbook, from memory), a_w of the saturated solution (Greenspan 1977, from memory))
+JOBS = {
+    "LiCl": ("Li", "Cl", (0.1494, 0.3074, 0.0, 0.00359), 0.3, 19.9, 0.113),
+    "NaNO3": ("Na", "NO3", (0.0068, 0.1783, 0.0, -0.00072), 0.0, 10.73, 0.7425),
+}
 
 
 def _g(x):
@@ -55,7 +71,8 @@ def _gp(x):
 def phi(m, p, alpha2, aphi):
     b0, b1, b2, c = p
     s = np.sqrt(m)
-    return 1.0 - aphi * s / (1.0 + B * s) + m * (b0 + b1 * np.exp(-ALPHA1 * s) + b2 * np.exp(-alpha2 * s)) + m * m * c
+    beta2 = b2 * np.exp(-alpha2 * s) if alpha2 > 0 else 0.0
+    return 1.0 - aphi * s / (1.0 + B * s) + m * (b0 + b1 * np.exp(-ALPHA1 * s) + beta2) + m * m * c
 
 
 def ln_gamma(m, p, alpha2, aphi):
@@ -67,48 +84,59 @@ def ln_gamma(m, p, alpha2, aphi):
     return f + m * m * bp + 2.0 * m * bb + 1.5 * m * m * c
 
 
-def fit(aphi: float):
+def fit(aphi: float, job):
+    """(beta0, beta1, beta2, C^phi), max |phi - PM73| to 6 mol/kg, phi at saturation and its target."""
+    _, _, pm73, alpha2, m_sat, aw_sat = job
     ms = np.array([0.1, 0.25, 0.5, 1.0, 1.5, 2.0, 3.0, 4.0, 5.0, 6.0])
-    t_phi, t_lng = phi(ms, PM73, 1.0, aphi), ln_gamma(ms, PM73, 0.0, aphi)
-    phi_sat = -np.log(AW_SAT) / (2.0 * M_SAT * M_WATER)
+    t_phi, t_lng = phi(ms, pm73, 0.0, aphi), ln_gamma(ms, pm73, 0.0, aphi)
+    phi_sat = -np.log(aw_sat) / (2.0 * m_sat * M_WATER)
+
+    def full(p):
+        return (p[0], p[1], p[2], p[3]) if alpha2 > 0 else (p[0], p[1], 0.0, p[2])
 
     def resid(p):
-        return np.r_[5 * (phi(ms, p, ALPHA2, aphi) - t_phi), 5 * (ln_gamma(ms, p, ALPHA2, aphi) - t_lng),
-                     3 * (phi(M_SAT, p, ALPHA2, aphi) - phi_sat)]
+        q = full(p)
+        return np.r_[5 * (phi(ms, q, alpha2, aphi) - t_phi), 5 * (ln_gamma(ms, q, alpha2, aphi) - t_lng),
+                     3 * (phi(m_sat, q, alpha2, aphi) - phi_sat)]
 
-    res = least_squares(resid, [0.15, 0.3, 0.0, 0.0])
-    dev = float(np.abs(phi(ms, res.x, ALPHA2, aphi) - t_phi).max())
-    return res.x, dev, float(phi(M_SAT, res.x, ALPHA2, aphi)), phi_sat
+    start = [pm73[0], pm73[1], 0.0, pm73[3]] if alpha2 > 0 else [pm73[0], pm73[1], pm73[3]]
+    res = least_squares(resid, start)
+    q = full(res.x)
+    dev = float(np.abs(phi(ms, q, alpha2, aphi) - t_phi).max())
+    return q, dev, float(phi(m_sat, q, alpha2, aphi)), phi_sat
 
 
 def main(argv) -> int:
     aphi = float(a_phi(25.0))
-    p, dev, ps, target = fit(aphi)
-    print(f"A_phi(25 degC) = {aphi:.5f}; beta0 {p[0]:.6g}, beta1 {p[1]:.6g}, beta2 {p[2]:.6g}, C^phi {p[3]:.6g}, "
-          f"alpha2 {ALPHA2}; max |phi - PM73| to 6 mol/kg {dev:.4f}; phi at {M_SAT} mol/kg {ps:.4f} (target {target:.4f})")
-    if "--dry-run" in argv:
-        return 0
-    src = ("a0 fitted in this project (scripts/fit_licl_concentrated.py) to PM73's phi and ln gamma at 0.1-6 mol/kg "
-           "and a_w = 0.113 of saturated LiCl at 25 degC (Greenspan 1977, J. Res. NBS 81A, 89; from memory), "
-           "two-alpha form of B (alpha2 = 0.3)")
-    updates = {}
-    for name, value in zip(("beta0", "beta1", "beta2", "cphi"), p):
-        updates[("Li", "Cl", name)] = {"a0": value, "_source_a0": src}
-    updates[("Li", "Cl", "alpha2")] = {"a0": ALPHA2, "_source_a0": src}
-    n = rewrite_licl(updates, src)
-    print(f"rewrote {n} Li-Cl rows of data/pitzer_binary.csv")
+    for salt, job in JOBS.items():
+        cat, an, _, alpha2, m_sat, aw_sat = job
+        p, dev, ps, target = fit(aphi, job)
+        print(f"{salt}: beta0 {p[0]:.6g}, beta1 {p[1]:.6g}, beta2 {p[2]:.6g}, C^phi {p[3]:.6g}, alpha2 {alpha2}; "
+              f"max |phi - PM73| to 6 mol/kg {dev:.4f}; phi at {m_sat} mol/kg {ps:.4f} (target {target:.4f})")
+        if "--dry-run" in argv:
+            continue
+        src = (f"a0 fitted in this project (scripts/fit_concentrated_binaries.py) to PM73's phi and ln gamma at "
+               f"0.1-6 mol/kg and a_w = {aw_sat} of saturated {salt} at 25 degC (Greenspan 1977, J. Res. NBS 81A, "
+               "89; from memory)" + (f", two-alpha form of B (alpha2 = {alpha2})" if alpha2 > 0 else ""))
+        names = ("beta0", "beta1", "beta2", "cphi") if alpha2 > 0 else ("beta0", "beta1", "cphi")
+        values = p if alpha2 > 0 else (p[0], p[1], p[3])
+        updates = {(cat, an, name): {"a0": v} for name, v in zip(names, values)}
+        if alpha2 > 0:
+            updates[(cat, an, "alpha2")] = {"a0": alpha2}
+        n = rewrite_rows(cat, an, updates, src)
+        print(f"  rewrote {n} {cat}-{an} rows of data/pitzer_binary.csv")
     return 0
 
 
-def rewrite_licl(updates: dict, src: str) -> int:
-    """Set a0 of the Li-Cl rows (adding the beta2 and alpha2 rows when missing), keeping a1..a4."""
+def rewrite_rows(cation: str, anion: str, updates: dict, src: str) -> int:
+    """Set a0 of the cation-anion rows (adding beta2 and alpha2 rows when missing), keeping a1..a4."""
     path = ROOT / "data" / "pitzer_binary.csv"
     lines = path.read_text().splitlines()
     header_i = next(i for i, ln in enumerate(lines) if ln.startswith("cation,"))
     cols = lines[header_i].split(",")
     done, out = set(), []
     for ln in lines:
-        if ln.startswith("Li,Cl,"):
+        if ln.startswith(f"{cation},{anion},"):
             row = next(csv.reader(io.StringIO(ln)))
             key = tuple(row[:3])
             if key in updates:
@@ -121,7 +149,7 @@ def rewrite_licl(updates: dict, src: str) -> int:
                 csv.writer(buf, lineterminator="").writerow(row)
                 ln = buf.getvalue()
         out.append(ln)
-    last = max(i for i, ln in enumerate(out) if ln.startswith("Li,Cl,"))
+    last = max(i for i, ln in enumerate(out) if ln.startswith(f"{cation},{anion},"))
     template = next(csv.reader(io.StringIO(out[last])))
     for key, upd in updates.items():
         if key in done:
