@@ -13,7 +13,7 @@ import pandas as pd
 
 from phasekit.cli import common as c
 
-SYSTEMS = ("ternary", "reciprocal", "seawater")
+SYSTEMS = ("ternary", "reciprocal", "reciprocal-nitrate", "seawater")
 
 
 def diagram_function(name: str):
@@ -60,7 +60,7 @@ def _isotherm(args) -> c.Report:
             from phasekit.errors import InputError
 
             raise InputError("salts", args.salts, "two salts with one ion in common, e.g. NaCl KCl "
-                                                  "(or --system reciprocal|seawater without salts)")
+                                                  "(or --system reciprocal|reciprocal-nitrate|seawater without salts)")
         res = diagram_function("isotherm")(list(args.salts), temp_c=args.temp, metastable=args.metastable,
                                            exclude=exclude, model=model)
         rep = diagram_report(res, {"salts": list(args.salts), "temp_c": args.temp,
@@ -72,8 +72,11 @@ def _isotherm(args) -> c.Report:
             from phasekit.errors import InputError
 
             raise InputError("salts", args.salts, f"no salts with --system {args.system} (its ions are fixed)")
-        fn = diagram_function("reciprocal_isotherm" if args.system == "reciprocal" else "seawater_isotherm")
-        res = fn(args.temp, exclude=exclude, model=model)
+        if args.system == "seawater":
+            res = diagram_function("seawater_isotherm")(args.temp, exclude=exclude, model=model)
+        else:
+            res = diagram_function("reciprocal_isotherm")(args.temp, exclude=exclude, model=model,
+                                                          anion="NO3" if args.system == "reciprocal-nitrate" else "SO4")
         rep = diagram_report(res, {"system": args.system, "temp_c": args.temp}, "invariant_points",
                              ["invariant_points"])
         figure = "save_jaenecke"
@@ -104,16 +107,17 @@ def register(sub) -> None:
     p = c.add_parser(sub, "isotherm", "isotherm of a salt system (phase diagram)",
                      "Saturation curves, crystallization fields and invariant points of a salt system in water at "
                      "one temperature: a salt–salt–water system with a common ion (two salts), or the Jänecke "
-                     "projections of the reciprocal pair Na, K // Cl, SO4 and of the oceanic salts at halite "
-                     "saturation (--system).",
+                     "projections of the reciprocal pairs Na, K // Cl, SO4 and Na, K // Cl, NO3 and of the oceanic "
+                     "salts at halite saturation (--system).",
                      ["phasekit isotherm NaCl KCl --temp 25 --plot nacl-kcl-25.png",
                       "phasekit isotherm KCl MgCl2 --temp 25 --format csv --table curves -o kcl-mgcl2.csv",
-                      "phasekit isotherm --system seawater --temp 25 --plot oceanic-25.pdf"])
+                      "phasekit isotherm --system seawater --temp 25 --plot oceanic-25.pdf",
+                      "phasekit isotherm --system reciprocal-nitrate --temp 75 --format json"])
     p.add_argument("salts", nargs="*", help="two salt formulas with a common ion (e.g. NaCl KCl)")
     c.add_temp(p)
     p.add_argument("--system", choices=SYSTEMS, default="ternary",
-                   help="ternary (two salts, default), reciprocal (Na, K // Cl, SO4) or seawater (oceanic salts "
-                   "at halite saturation)")
+                   help="ternary (two salts, default), reciprocal (Na, K // Cl, SO4), reciprocal-nitrate "
+                   "(Na, K // Cl, NO3) or seawater (oceanic salts at halite saturation)")
     p.add_argument("--metastable", action="store_true", help="also trace metastable extensions (ternary)")
     p.add_argument("--exclude", default="", metavar="SOLID,...", help="solids left out (metastable diagrams)")
     p.add_argument("--diagram", choices=("triangle", "rectangular"), default="triangle",

@@ -1,4 +1,4 @@
-"""Subcommands ``evaporate``, ``cool``, ``mix`` and ``ponds`` (process paths)."""
+"""Subcommands ``evaporate``, ``cool``, ``mix``, ``ponds`` and ``convert`` (process paths)."""
 
 from __future__ import annotations
 
@@ -139,6 +139,37 @@ def _ponds(args) -> c.Report:
                     warnings=[w for p in res.paths.values() for w in p.warnings])
 
 
+def _dilution(text: str):
+    if str(text).strip().lower() == "auto":
+        return "auto"
+    try:
+        return float(text)
+    except ValueError:
+        raise InputError("--dilution", text, "'auto' or kg of water per kg of feed water (>= 0)") from None
+
+
+def _convert(args) -> c.Report:
+    import phasekit as pk
+
+    (feed,) = c.read_brines(args)
+    res = pk.hot_cold_cycle(feed, hot_c=args.hot, cold_c=args.cold, hot_solid=args.hot_solid,
+                            cold_solid=args.cold_solid, dilution=_dilution(args.dilution), model=c.model_of(args))
+    st = res.stages.set_index("stage")
+    scalars = {"hot_c": args.hot, "cold_c": args.cold,
+               "water_evaporated_kg": float(st.loc["hot", "water_kg"]),
+               "water_added_kg": float(-st.loc["dilution", "water_kg"]),
+               "hot_solid": st.loc["hot", "main_solid"], "hot_purity": float(st.loc["hot", "purity"]),
+               "cold_solid": st.loc["cold", "main_solid"], "cold_purity": float(st.loc["cold", "purity"]),
+               **{f"yield_{ion}": v for ion, v in res.yields.items()}}
+    crops = pd.DataFrame([{"stage": stage, "solid": s, "grams": g}
+                          for stage, crop in (("hot", res.hot_solids), ("cold", res.cold_solids))
+                          for s, g in crop.items()])
+    liquors = pd.DataFrame([{"liquor": "hot (before dilution)", "water_kg": res.hot_water_kg, **res.hot_liquor},
+                            {"liquor": "cold (recycle)", "water_kg": res.recycle_water_kg, **res.recycle}])
+    return c.Report(scalars=scalars, tables={"stages": res.stages, "crops": crops, "liquors": liquors},
+                    main="stages", warnings=list(res.warnings), show=["stages", "crops", "liquors"])
+
+
 def register(sub) -> None:
     brine_ex = "--brine Na=10780,K=399,Mg=1290,Ca=412,Cl=19350,SO4=2710 --units mg/kg"
     p = c.add_parser(sub, "evaporate", "isothermal evaporation path",
@@ -201,3 +232,24 @@ def register(sub) -> None:
     c.add_overlay_option(p)
     c.add_output_options(p, tables=("ponds", "harvest", "outflow"))
     p.set_defaults(func=_ponds)
+
+    p = c.add_parser(sub, "convert", "hot/cold conversion cycle (e.g. KNO3 from NaNO3 + KCl)",
+                     "One cycle of a conversion process, per kg of the feed's water: evaporate at --hot °C until "
+                     "the cold solid is about to saturate (the hot solid crystallizes and is separated hot), add "
+                     "the water that keeps the hot solid dissolved on cooling (--dilution auto) or a given amount, "
+                     "cool to --cold °C (the cold solid crystallizes). Reports water evaporated and added, crops "
+                     "with purities, yields and the recycle liquor.",
+                     ["phasekit convert --salts NaNO3=5.2,KCl=4.0 --units mol/kg --hot 75 --cold 20",
+                      "phasekit convert --salts NaNO3=5.2,KCl=4.0 --units mol/kg --hot 90 --cold 15 --dilution 0.1 "
+                      "--format json"])
+    c.add_brine_options(p)
+    c.add_temp(p, 75.0, "--hot", "temperature of the evaporating crystallizer, °C")
+    c.add_temp(p, 20.0, "--cold", "temperature of the cooling crystallizer, °C")
+    p.add_argument("--hot-solid", default="halite", metavar="SOLID", help="solid harvested hot (default halite)")
+    p.add_argument("--cold-solid", default="niter", metavar="SOLID", help="solid harvested cold (default niter)")
+    p.add_argument("--dilution", default="auto", metavar="auto|KG",
+                   help="water added before cooling, kg per kg of feed water (default auto: the least that keeps "
+                   "the hot solid dissolved)")
+    c.add_overlay_option(p)
+    c.add_output_options(p, tables=("stages", "crops", "liquors"))
+    p.set_defaults(func=_convert)

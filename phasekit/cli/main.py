@@ -23,7 +23,7 @@ _GROUPS = ("cmd_solubility", "cmd_brine", "cmd_paths", "cmd_diagrams", "cmd_fit"
            "cmd_app")
 #: order of the subcommands in --help
 ORDER = ("solubility", "polytherm", "saturation", "equilibrate", "isotherm", "evaporate", "cool", "mix", "ponds",
-         "leach", "fit", "batch", "app")
+         "convert", "leach", "fit", "batch", "app")
 #: warnings of third-party packages that say nothing to a user of phasekit (only warnings raised
 #: from phasekit's own code are shown; these are dropped even then)
 _NOISE = ("Using extrapolated values",)

@@ -202,7 +202,8 @@ def hot_cold_cycle(feed, hot_c: float = 90.0, cold_c: float = 20.0, hot_solid: s
     stages = pd.DataFrame([
         {"stage": "hot", "temp_c": th, "water_kg": 1.0 - hot.w, "solids_g": sum(hot_solids.values()),
          "main_solid": hm, "purity": hp},
-        {"stage": "dilution", "temp_c": th, "water_kg": -add, "solids_g": 0.0, "main_solid": "", "purity": np.nan},
+        {"stage": "dilution", "temp_c": th, "water_kg": -add if add else 0.0, "solids_g": 0.0, "main_solid": "",
+         "purity": np.nan},
         {"stage": "cold", "temp_c": tc, "water_kg": 0.0, "solids_g": sum(cold_solids.values()), "main_solid": cm,
          "purity": cp},
     ])

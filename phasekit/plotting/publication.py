@@ -171,8 +171,8 @@ def save_jaenecke(result, file, path=None, dpi: int = 200, model=None) -> Path:
     title = {"reciprocal": "Na+, K+ // Cl−, SO4²− – H2O", "reciprocal_nitrate": "Na+, K+ // Cl−, NO3− – H2O"}.get(
         meta["system"], "Oceanic salts at halite saturation (K2–Mg–SO4)")
     ax.set_title(f"{title}, {meta['temp_c']:g} °C", fontsize=11)
-    if len(inv):
-        ax.legend(fontsize=8, loc="upper right")
+    if len(inv):  # below the diagram: the corners carry the salt names
+        ax.legend(fontsize=8, loc="upper center", bbox_to_anchor=(0.5, 0.0), frameon=False)
     return _finish(fig, p, dpi)
 
 
