@@ -193,10 +193,17 @@ def monotonic_penalty(salt: str, rows: pd.DataFrame, model, min_slope: float = 0
     return penalty
 
 
-def transitions_of(model, salt: str) -> pd.DataFrame:
+def transitions_of(model, salt: str, solids=(), t_lo: float = 0.0, t_hi: float = 100.0) -> pd.DataFrame:
+    """Transitions between the salt's solids in pure water from t_lo to t_hi (°C), the solids' validity
+    ranges widened to it first (they are what this calibration is about to set)."""
+    tab = model.db.solids.copy()
+    sel = tab["solid"].isin(list(solids))
+    tab.loc[sel, "t_min_c"] = np.minimum(tab.loc[sel, "t_min_c"].astype(float), t_lo)
+    tab.loc[sel, "t_max_c"] = np.maximum(tab.loc[sel, "t_max_c"].astype(float), t_hi)
+    wide = Model(model.db.with_tables(solids=tab))
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", ValidityWarning)
-        return pk.polytherm(salt, 0.0, 100.0, 1.0, model=model)[1]
+        return pk.polytherm(salt, t_lo, t_hi, 1.0, model=wide)[1]
 
 
 def activity_sanity(model, salt: str, m_sat: float, temp_c: float) -> list[str]:
@@ -393,7 +400,8 @@ def main(dry_run: bool = False, data_dir: Path = DATA) -> dict:
         tmin = float(min(rows["temp_c"].min(), 25.0))
         tmax = float(max(rows["temp_c"].max(), 25.0))
         # solids
-        trans = transitions_of(model, salt) if len(cfg["solids"]) > 1 else pd.DataFrame()
+        trans = (transitions_of(model, salt, cfg["solids"], float(rows["temp_c"].min()), float(rows["temp_c"].max()))
+                 if len(cfg["solids"]) > 1 else pd.DataFrame())
         for s in cfg["solids"]:
             sr = rows[rows["solids"] == s]
             # the data range, widened to 25 °C (where dH and dCp were measured) and to the transitions
