@@ -71,12 +71,14 @@ class PolythermResult(DiagramData):
     transitions: pd.DataFrame
     isotherms: dict = field(default_factory=dict, repr=False)
     warnings: list = field(default_factory=list)
+    database: str = "embedded database"
 
     kind = "polytherm"
     table_names = ("invariant_points", "curves", "binary_points", "transitions")
 
     def meta(self) -> dict:
-        return {"salts": list(self.salts), "temperatures": list(self.temperatures), "warnings": list(self.warnings)}
+        return {"salts": list(self.salts), "temperatures": list(self.temperatures), "warnings": list(self.warnings),
+                "database": self.database}
 
 
 def _sequence(ev, net) -> list:
@@ -226,7 +228,8 @@ def ternary_polytherm(salts, t_min_c: float = 0.0, t_max_c: float = 100.0, step_
     tcols = ["temp_c", "kind", "event", "solids", "solids_below", "solids_above", f"x_{B}"] + list(
         composition_columns(sysm, np.zeros((1, 2))).keys()) + ["water_activity", "max_abs_saturation_index"]
     trans = pd.DataFrame(sorted(transitions, key=lambda r: r["temp_c"]), columns=tcols)
-    return PolythermResult(list(sysm.salts), grid, inv.reset_index(drop=True), cur, binary, trans, isos, warns)
+    return PolythermResult(list(sysm.salts), grid, inv.reset_index(drop=True), cur, binary, trans, isos, warns,
+                           getattr(model, "label", "embedded database"))
 
 
 def _resolve(model, sysm, nets, ta, tb, out, warns, depth):

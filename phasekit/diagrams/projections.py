@@ -72,12 +72,14 @@ class ProjectionResult(DiagramData):
     fields: pd.DataFrame
     corners: dict = field(default_factory=dict)
     warnings: list = field(default_factory=list)
+    database: str = "embedded database"
 
     kind = "projection"
     table_names = ("curves", "invariant_points", "side_points", "fields")
 
     def meta(self) -> dict:
-        return {"system": self.system, "temp_c": self.temp_c, "corners": self.corners, "warnings": list(self.warnings)}
+        return {"system": self.system, "temp_c": self.temp_c, "corners": self.corners, "warnings": list(self.warnings),
+                "database": self.database}
 
     @property
     def field_solids(self) -> list:
@@ -177,7 +179,7 @@ def _build(model, sysm, system: str, temp_c: float) -> ProjectionResult:
         warn_validity(w)
     corners = {v.name: list(_plot_xy(system, _corner_coords(system, v.coords))) for v in sysm.vertices}
     return ProjectionResult(system, float(temp_c), curves, inner.reset_index(drop=True), side.reset_index(drop=True),
-                            fields, corners, warns)
+                            fields, corners, warns, getattr(model, "label", "embedded database"))
 
 
 def _corner_coords(system, proj):

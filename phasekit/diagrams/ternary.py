@@ -81,13 +81,14 @@ class IsothermResult(DiagramData):
     solid_points: pd.DataFrame
     metastable: bool = False
     warnings: list = field(default_factory=list)
+    database: str = "embedded database"
 
     kind = "isotherm"
     table_names = ("curves", "invariant_points", "fields", "tie_lines", "solid_points")
 
     def meta(self) -> dict:
         return {"salts": list(self.salts), "temp_c": self.temp_c, "metastable": self.metastable,
-                "warnings": list(self.warnings)}
+                "warnings": list(self.warnings), "database": self.database}
 
     @property
     def stable_sequence(self) -> list:
@@ -229,7 +230,8 @@ def result_from_network(model, sysm, ev, net, temp_c, metastable=False, tie_line
     if light:
         empty = pd.DataFrame()
         return IsothermResult(list(sysm.salts), float(temp_c), curves, invariant, empty, empty, empty, metastable,
-                              warns + _validity_warnings(model, net, temp_c, stable_solids))
+                              warns + _validity_warnings(model, net, temp_c, stable_solids),
+                              getattr(model, "label", "embedded database"))
     # ----------------------------------------------------------- solids
     stable_solids = {ev.names[sg.solids[0]] for sg in net.segments if not sg.metastable}
     srows = []
@@ -288,7 +290,7 @@ def result_from_network(model, sysm, ev, net, temp_c, metastable=False, tie_line
     for w in warns:
         warn_validity(w)
     return IsothermResult(list(sysm.salts), float(temp_c), curves, invariant, fields, tie_lines, solid_points,
-                          metastable, warns)
+                          metastable, warns, getattr(model, "label", "embedded database"))
 
 
 def _validity_warnings(model, net, temp_c, stable_solids) -> list:

@@ -125,6 +125,7 @@ def saturation(model, brine, temp_c: float, amounts: bool | None = None) -> pd.D
             si = saturation_indices(model, m, float(temp_c))
         out = pd.DataFrame(si, index=brine.index, columns=model.solids.names)
         out.attrs["warnings"] = model._validity(m, temp_c, np.zeros(1))
+        out.attrs["database"] = getattr(model, "label", "embedded database")
         if amounts:
             raise InputError("amounts", amounts, "False for a DataFrame of brines (amounts are computed per brine: "
                              "call saturation() with one brine)")
@@ -157,6 +158,7 @@ def saturation(model, brine, temp_c: float, amounts: bool | None = None) -> pd.D
         out["dissolvable_g_per_kg_water"] = xi * masses
     out = out[np.isfinite(out["saturation_index"])]
     out.attrs["warnings"] = warns
+    out.attrs["database"] = getattr(model, "label", "embedded database")
     return out
 
 

@@ -64,6 +64,8 @@ class SolubilityResult:
     candidates : pandas.DataFrame
         Saturated molality and water activity of every solid of the salt considered (the stable
         one is the lowest; NaN where a solid does not saturate below ``M_SEARCH_MAX``).
+    database : str
+        Database the result was computed with ("embedded database" or the overlays on it).
     """
 
     salt: str
@@ -75,6 +77,7 @@ class SolubilityResult:
     water_activity: float
     warnings: list = field(default_factory=list)
     _cand: tuple = field(default=((), (), ()), repr=False)
+    database: str = "embedded database"
 
     @property
     def candidates(self) -> pd.DataFrame:
@@ -86,7 +89,7 @@ class SolubilityResult:
         return {
             "salt": self.salt, "solid": self.solid, "temp_c": self.temp_c, "molality": self.molality,
             "grams_per_100g_water": self.grams_per_100g_water, "mass_percent": self.mass_percent,
-            "water_activity": self.water_activity, "warnings": list(self.warnings),
+            "water_activity": self.water_activity, "warnings": list(self.warnings), "database": self.database,
         }
 
 
@@ -340,6 +343,7 @@ def solubility(salt: str, temp_c: float, model=None) -> SolubilityResult:
         info.name, model.solids.names[k], t, molality, molality * mw / 10.0,
         100.0 * molality * mw / (1000.0 + molality * mw), float(np.exp(ln_aw[best])), warns,
         (tuple(model.solids.names[i] for i in idx), tuple(m.tolist()), tuple(np.exp(ln_aw).tolist())),
+        getattr(model, "label", "embedded database"),
     )
 
 

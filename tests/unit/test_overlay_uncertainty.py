@@ -113,3 +113,22 @@ def test_onset_concentration_factor_matches_path(model):
     assert cf == pytest.approx(path.first_solid["concentration_factor"], rel=1e-9)
     with pytest.raises(InputError):
         onset_concentration_factor(model, sea, 25.0, solid="halite")  # gypsum comes first
+
+
+def test_every_result_names_its_database():
+    import warnings as _w
+
+    from phasekit.data_files import data_dir
+
+    m = pk.load_model(overlays=[data_dir() / "overlays" / "halite_pbb1977.toml"])
+    with _w.catch_warnings():
+        _w.simplefilter("ignore")
+        results = [pk.solubility("NaCl", temp_c=25, model=m), pk.isotherm(["NaCl", "KCl"], 25, model=m),
+                   pk.reciprocal_isotherm(25, model=m), pk.ternary_polytherm(["NaCl", "KCl"], 20, 30, 5, model=m),
+                   m.equilibrate(pk.Brine({"Na": 7, "Cl": 7}), 25), pk.evaporate(pk.Brine({"Na": 1, "Cl": 1}), 25,
+                                                                                  model=m)]
+        sat = m.saturation(pk.Brine({"Na": 1, "Cl": 1}), 25)
+    for r in results:
+        assert "halite after Potter" in r.database, type(r).__name__
+    assert "halite after Potter" in sat.attrs["database"]
+    assert pk.solubility("NaCl", temp_c=25).database == "embedded database"
