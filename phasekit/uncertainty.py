@@ -190,3 +190,15 @@ def onset_concentration_factor(model, brine, temp_c: float, solid: str | None = 
                 raise InputError("solid", solid, f"the first solid to saturate ({model.solids.names[first]} "
                                  "comes first)")
     return float(cf)
+
+
+def _onset(model, brine, temp_c, solid):
+    return onset_concentration_factor(model, brine, temp_c, solid)
+
+
+def onset_predictor(brine, temp_c: float, solid: str | None = None):
+    """``predict(model)`` for :func:`monte_carlo`: the onset concentration factor of ``brine`` at
+    ``temp_c`` (of ``solid``, or of the first solid); picklable, so it runs on a Dask cluster."""
+    from functools import partial
+
+    return partial(_onset, brine=brine, temp_c=float(temp_c), solid=solid)

@@ -19,11 +19,11 @@ import warnings
 from phasekit import __version__
 from phasekit.cli import common as c
 
-_GROUPS = ("cmd_solubility", "cmd_brine", "cmd_paths", "cmd_diagrams", "cmd_fit", "cmd_kinetics", "cmd_batch",
-           "cmd_app")
+_GROUPS = ("cmd_solubility", "cmd_brine", "cmd_paths", "cmd_diagrams", "cmd_fit", "cmd_uncertainty", "cmd_kinetics",
+           "cmd_batch", "cmd_app")
 #: order of the subcommands in --help
 ORDER = ("solubility", "polytherm", "saturation", "equilibrate", "isotherm", "evaporate", "cool", "mix", "ponds",
-         "convert", "leach", "fit", "batch", "app")
+         "convert", "leach", "fit", "onset", "batch", "app")
 #: warnings of third-party packages that say nothing to a user of phasekit (only warnings raised
 #: from phasekit's own code are shown; these are dropped even then)
 _NOISE = ("Using extrapolated values",)
