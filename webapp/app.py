@@ -13,6 +13,7 @@ from dash import Dash
 
 from webapp import (
     brine_view,
+    conversion_view,
     database,
     database_view,
     diagram_view,
@@ -35,7 +36,7 @@ def create_app() -> Dash:
     app.server.config["MAX_CONTENT_LENGTH"] = 4 * MAX_UPLOAD_BYTES
     app.layout = layout.build
     for view in (brine_view, database_view, diagram_view, saturation_view, path_view, polytherm_view, pond_view,
-                 leach_view, session_view, export):
+                 conversion_view, leach_view, session_view, export):
         view.register(app)
     return app
 

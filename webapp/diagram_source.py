@@ -3,7 +3,7 @@
 for its figure, each with the database chosen (:mod:`webapp.database`). Nothing is computed here.
 
 Library functions used (``phasekit.diagrams``, ``phasekit.plotting``): ``isotherm(salts, temp_c)``,
-``reciprocal_isotherm(temp_c)``, ``seawater_isotherm(temp_c)``; ``ternary_figure``,
+``reciprocal_isotherm(temp_c, anion=...)`` (``"SO4"`` or ``"NO3"``), ``seawater_isotherm(temp_c)``; ``ternary_figure``,
 ``rectangular_figure(result, units=...)``, ``jaenecke_figure``; the path projections
 ``plotting.overlay.ternary_path`` and ``projection_path``. They are imported when first used:
 if one is missing, :class:`DiagramUnavailable` says so plainly and the view keeps working.
@@ -15,7 +15,7 @@ import importlib
 from functools import lru_cache
 
 from webapp import database
-from webapp.systems import get_system
+from webapp.systems import RECIPROCAL_ANION, get_system
 
 
 class DiagramUnavailable(Exception):
@@ -40,8 +40,10 @@ def diagram(system_key: str, temp_c: float, db_key: tuple = (database.EMBEDDED,)
     model = database.model_by_key(db_key)
     if system.kind == "ternary":
         return library("phasekit.diagrams", "isotherm")(list(system.salts), temp_c=temp_c, model=model)
-    name = "reciprocal_isotherm" if system.kind == "reciprocal" else "seawater_isotherm"
-    return library("phasekit.diagrams", name)(temp_c=temp_c, model=model)
+    if system.kind in RECIPROCAL_ANION:
+        return library("phasekit.diagrams", "reciprocal_isotherm")(temp_c=temp_c, anion=RECIPROCAL_ANION[system.kind],
+                                                                   model=model)
+    return library("phasekit.diagrams", "seawater_isotherm")(temp_c=temp_c, model=model)
 
 
 @lru_cache(maxsize=96)

@@ -71,6 +71,9 @@ def layout(inputs: dict) -> html.Div:
         html.Div(id="diagram-db"),
         figure_buttons("diagram-graph"),
         html.Div(id="diagram-points"),
+        # static (not re-rendered with the table): a button created again on every diagram would fire the
+        # export callback each time and could cancel a download asked for meanwhile
+        html.Div(export_buttons("invariant_points"), id="diagram-points-export", style={"display": "none"}),
     ], className="pk-view")
 
 
@@ -99,7 +102,8 @@ def update_diagram(system_key, temp_c, coords, units, brine, path, db=None):
     try:
         model = database.model_for(db)
     except Exception as exc:
-        return no_update, messages.error(messages.describe(exc, "the database")), no_update, no_update, no_update
+        return (no_update, messages.error(messages.describe(exc, "the database")), no_update, no_update, no_update,
+                no_update)
     key = database.key_of(db)
     try:
         result = diagram_source.diagram(system.key, float(temp_c), key)
@@ -118,7 +122,7 @@ def update_diagram(system_key, temp_c, coords, units, brine, path, db=None):
         fig, more = diagram_figure(system, coords, units, base, brine, path_data, title, model=model)
     except Exception as exc:
         return (no_update, messages.error(messages.describe(exc, "drawing the diagram")), no_update, no_update,
-                no_update)
+                no_update, no_update)
     notes += more
     if result is not None:
         notes += [w for w in getattr(result, "warnings", [])]
@@ -129,8 +133,7 @@ def update_diagram(system_key, temp_c, coords, units, brine, path, db=None):
             store["tables"]["invariant_points"] = stored(view)
             cols = [c for c in view.columns if c in ("solids", "kind") or c.endswith("_mass_percent")
                     or c.startswith("jaenecke_") or c == "water_activity"]
-            points_view = [html.H3("Invariant points"), table(view[cols], id="diagram-points-table"),
-                           export_buttons("invariant_points")]
+            points_view = [html.H3("Invariant points"), table(view[cols], id="diagram-points-table")]
         for name in ("curves", "fields", "tie_lines"):
             df = getattr(result, name, None)
             if isinstance(df, pd.DataFrame) and len(df):
@@ -139,7 +142,8 @@ def update_diagram(system_key, temp_c, coords, units, brine, path, db=None):
                        for c in df.columns if df[c].dtype == object}))
     msg = html.Div([messages.note(n) for n in dict.fromkeys(notes)]) if notes else None
     store["database"] = model.label
-    return fig, msg, points_view, store, database.label_line(model, id="diagram-db-label")
+    export_style = {} if points_view else {"display": "none"}
+    return fig, msg, points_view, store, database.label_line(model, id="diagram-db-label"), export_style
 
 
 def register(app):
@@ -148,6 +152,7 @@ def register(app):
                  prevent_initial_call=True)(sync_temperature)
     app.callback(Output("diagram-graph", "figure"), Output("diagram-msg", "children"),
                  Output("diagram-points", "children"), Output("res-diagram", "data"), Output("diagram-db", "children"),
+                 Output("diagram-points-export", "style"),
                  Input("system", "value"), Input("temp-c", "data"), Input("coords", "value"), Input("basis", "value"),
                  Input("brine", "data"), Input("path-result", "data"), Input("database", "data"))(update_diagram)
 

@@ -7,6 +7,7 @@ from dash import dcc, html
 
 from webapp import (
     brine_view,
+    conversion_view,
     diagram_view,
     leach_view,
     path_view,
@@ -24,6 +25,9 @@ CAUTIONS = [
     [html.B("Hot brines and crystallizers "), "scald, and concentrated brines are corrosive. Crystallizers, "
      "evaporators, heaters and pressure equipment are designed, operated and inspected under local codes and by "
      "qualified people."],
+    [html.B("Nitrates are oxidizers. "), "Dry KNO3 and NaNO3, and nitrate crusts on hot surfaces, feed fires with "
+     "organic matter, fuels or reducing agents; store and handle them under the local rules for oxidizing "
+     "substances."],
     [html.B("Pond dikes, liners and brine discharge "), "are governed by local codes, permits and licensed "
      "engineering practice (geotechnical design of dikes, leakage control, discharge limits); this app does not "
      "replace any of them."],
@@ -35,6 +39,7 @@ TABS = [
     ("path", "Evaporation & cooling", path_view),
     ("polytherm", "Solubility vs temperature", polytherm_view),
     ("ponds", "Pond train", pond_view),
+    ("conversion", "Conversion cycle", conversion_view),
     ("leach", "Dissolution rate", leach_view),
 ]
 
@@ -66,7 +71,7 @@ def build() -> html.Div:
         dcc.Store(id="brine"),
         dcc.Store(id="path-result"),
         dcc.Store(id="res-sat"), dcc.Store(id="res-diagram"), dcc.Store(id="res-poly"), dcc.Store(id="res-ponds"),
-        dcc.Store(id="res-leach"),
+        dcc.Store(id="res-leach"), dcc.Store(id="res-conv"),
         dcc.Store(id="figure-export-done"),
         dcc.Download(id="table-download"),
     ], className="pk-page")

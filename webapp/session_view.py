@@ -6,11 +6,11 @@ from __future__ import annotations
 from dash import ALL, ClientsideFunction, Input, Output, State, dcc, html, no_update
 from dash.exceptions import PreventUpdate
 
-from webapp import brine_view, database, messages, pond_view, uploads
+from webapp import brine_view, conversion_view, database, messages, pond_view, uploads
 from webapp.demo import demo_session
 from webapp.diagram_view import parse_temperature
 from webapp.messages import UserInputProblem
-from webapp.session import normalise, to_json
+from webapp.session import CONVERSION_KEYS, normalise, to_json
 
 STORE_ID = "pk-inputs"
 
@@ -49,7 +49,8 @@ def restore(request):
     values = [inputs["system"], inputs["temp_c"], t, inputs["coordinates"], inputs["basis"],
               b["name"], b["units"], b["density"], b["rows"], b["balance_on"],
               inputs["analyses"], p["process"], p["mode"], p["start_c"], p["end_c"], p["scale"],
-              q["t_min_c"], q["t_max_c"], q["basis"], inputs["ponds"]]
+              q["t_min_c"], q["t_max_c"], q["basis"], inputs["ponds"],
+              *[inputs["conversion"][k] for k in CONVERSION_KEYS]]
     if request.get("boot"):
         # the page was built with the demo inputs: send only what differs (the page renders faster)
         values = [no_update if v == d else v for v, d in zip(values, _fields(demo_session()))]
@@ -70,7 +71,7 @@ def _fields(inputs: dict) -> list:
     return [inputs["system"], inputs["temp_c"], parse_temperature(inputs["temp_c"]), inputs["coordinates"],
             inputs["basis"], b["name"], b["units"], b["density"], b["rows"], b["balance_on"], inputs["analyses"],
             p["process"], p["mode"], p["start_c"], p["end_c"], p["scale"], q["t_min_c"], q["t_max_c"], q["basis"],
-            inputs["ponds"]]
+            inputs["ponds"], *[inputs["conversion"][k] for k in CONVERSION_KEYS]]
 
 
 def load_file(checked):
@@ -112,7 +113,8 @@ def register(app):
         Input("balance-on", "data"), Input("analyses", "data"), Input("path-process", "value"),
         Input("path-mode", "value"), Input("cool-start", "value"), Input("cool-end", "value"),
         Input("path-scale", "value"), Input("poly-tmin", "value"), Input("poly-tmax", "value"),
-        Input("poly-basis", "value"), Input("db-choice", "value"), Input("db-upload", "data"), *pond,
+        Input("poly-basis", "value"), Input("db-choice", "value"), Input("db-upload", "data"),
+        *[Input(i, "value") for i in conversion_view.IDS], *pond,
         prevent_initial_call=True,
     )
     app.callback(
@@ -124,6 +126,7 @@ def register(app):
         Output("path-mode", "value"), Output("cool-start", "value"), Output("cool-end", "value"),
         Output("path-scale", "value"), Output("poly-tmin", "value"), Output("poly-tmax", "value"), Output("poly-basis", "value"),
         Output("pond-rows", "children", allow_duplicate=True),
+        *[Output(i, "value") for i in conversion_view.IDS],
         Output("db-choice", "options", allow_duplicate=True), Output("db-choice", "value", allow_duplicate=True),
         Output("db-upload", "data", allow_duplicate=True), Output(STORE_ID, "data", allow_duplicate=True),
         Output("session-msg", "children"),

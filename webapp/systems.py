@@ -1,7 +1,8 @@
 """The systems offered by the diagram view.
 
-A system is a pair of salts with a common ion (a ternary isotherm salt–salt–water), the
-reciprocal pair Na, K // Cl, SO4 (Jänecke square), or the seawater system at halite
+A system is a pair of salts with a common ion (a ternary isotherm salt–salt–water), one of the
+reciprocal pairs Na, K // Cl, SO4 and Na, K // Cl, NO3 (Jänecke squares; the second is the system
+of the nitrate conversion, see :mod:`webapp.conversion_view`), or the seawater system at halite
 saturation (Jänecke K2–Mg–SO4 triangle) — the diagrams of :mod:`phasekit.diagrams`.
 Each system also names the salts whose solubility curves the polytherm view draws.
 """
@@ -21,7 +22,9 @@ class System:
         Stable identifier, kept in saved sessions.
     label : str
         Menu text.
-    kind : {"ternary", "reciprocal", "seawater"}
+    kind : {"ternary", "reciprocal", "reciprocal_nitrate", "seawater"}
+        The kind of diagram; for the projections it is also the library's ``result.system`` (the
+        name :func:`phasekit.plotting.overlay.projection_path` takes).
     salts : tuple of str
         Ternary: the two salts (first = horizontal axis). Reciprocal: the four salts, corners of
         the square in the order (c1 a1, c2 a1, c1 a2, c2 a2). Seawater: the salts of the polytherms.
@@ -55,6 +58,8 @@ SYSTEMS: dict[str, System] = {s.key: s for s in [
     _ternary("KCl", "KNO3"),
     System("reciprocal", "Na⁺, K⁺ ∥ Cl⁻, SO₄²⁻ – water (Jänecke square)", "reciprocal",
            ("NaCl", "KCl", "Na2SO4", "K2SO4"), (("Na", "K"), ("Cl", "SO4"))),
+    System("reciprocal-nitrate", "Na⁺, K⁺ ∥ Cl⁻, NO₃⁻ – water (Jänecke square)",
+           "reciprocal_nitrate", ("NaCl", "KCl", "NaNO3", "KNO3"), (("Na", "K"), ("Cl", "NO3"))),
     System("seawater", "Seawater salts at halite saturation (Jänecke K₂ – Mg – SO₄ triangle)", "seawater",
            ("NaCl", "KCl", "MgCl2", "MgSO4", "K2SO4")),
 ]}
@@ -70,3 +75,7 @@ def get_system(key) -> System:
 def menu_options() -> list[dict]:
     """Options of the system dropdown."""
     return [{"label": s.label, "value": s.key} for s in SYSTEMS.values()]
+
+
+#: the library's anion argument of ``reciprocal_isotherm`` for each reciprocal kind
+RECIPROCAL_ANION = {"reciprocal": "SO4", "reciprocal_nitrate": "NO3"}

@@ -35,7 +35,7 @@ from scipy.optimize import brentq
 from phasekit.equilibrium.common import composition_array
 from phasekit.equilibrium.saturation import _solid_mass, saturation_indices
 from phasekit.equilibrium.solver import solve_robust
-from phasekit.errors import ConvergenceError, InputError, ValidityWarning
+from phasekit.errors import ConvergenceError, InputError, RangeError, ValidityWarning
 from phasekit.paths.evaporation import _model, _temp
 
 #: smallest water left in the hot stage, kg per kg of feed water
@@ -138,6 +138,13 @@ def hot_cold_cycle(feed, hot_c: float = 90.0, cold_c: float = 20.0, hot_solid: s
     if hs == cs:
         raise InputError("cold_solid", cold_solid, f"a solid other than the hot solid ({hs})")
     k_hs, k_cs = model.solids.index[hs], model.solids.index[cs]
+    rng = model.solids.t_range
+    for field_name, t, ks in (("hot_c", th, (k_hs, k_cs)), ("cold_c", tc, (k_cs,))):
+        for k in ks:
+            lo, hi = rng[k]
+            if not lo <= t <= hi:
+                raise RangeError(field_name, t, f"a temperature within the data of {model.solids.names[k]}: "
+                                 f"{lo:g}–{hi:g} °C")
     m0 = composition_array(model, feed)
     for ion in model.solids.solids[k_cs].ions:
         if m0[model.index[ion]] <= 0:
@@ -187,6 +194,9 @@ def hot_cold_cycle(feed, hot_c: float = 90.0, cold_c: float = 20.0, hot_solid: s
         # 3. cold stage
         cold = _state(model, b, hot.w + add, tc)
     notes += [str(w.message) for w in caught if issubclass(w.category, ValidityWarning)]
+    for st, t in ((hot, th), (cold, tc)):
+        ion = model.compute(st.m[None, :], t)[3]
+        notes += model._validity(st.m[None, :], t, ion)
     notes = list(dict.fromkeys(notes))
     if not cold.n[k_cs] > 0:
         raise ConvergenceError(f"{cs} does not crystallize on cooling to {tc:g} °C", state=cold)
@@ -198,7 +208,8 @@ def hot_cold_cycle(feed, hot_c: float = 90.0, cold_c: float = 20.0, hot_solid: s
     for stage, crop, main in (("hot", hot_solids, hs), ("cold", cold_solids, cs)):
         others = sorted(s for s in crop if s != main)
         if others:
-            notes.append(f"{stage} stage: {', '.join(others)} crystallize with {main}")
+            verb = "crystallizes" if len(others) == 1 else "crystallize"
+            notes.append(f"{stage} stage: {', '.join(others)} {verb} with {main}")
     stages = pd.DataFrame([
         {"stage": "hot", "temp_c": th, "water_kg": 1.0 - hot.w, "solids_g": sum(hot_solids.values()),
          "main_solid": hm, "purity": hp},

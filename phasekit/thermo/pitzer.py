@@ -125,9 +125,14 @@ class PitzerModel:
         theta_a = np.zeros((na, na, 5))
         psi_c = np.zeros((nc, nc, na, 5))
         psi_a = np.zeros((na, na, nc, 5))
+        #: (species indices, t_min_c, t_max_c, label) of every mixing row, for the validity warnings
+        self._mixing_ranges = []
         for row in self.db.mixing.itertuples():
             a = [row.a0, row.a1, row.a2, row.a3, row.a4]
             s1, s2, s3 = row.species1, row.species2, row.species3
+            members = tuple(self.index[x] for x in (s1, s2, s3) if x)
+            label = f"{row.kind}({','.join(x for x in (s1, s2, s3) if x)})"
+            self._mixing_ranges.append((members, float(row.t_min_c), float(row.t_max_c), label))
             if row.kind == "theta":
                 if s1 in ci:
                     theta_c[ci[s1], ci[s2]] = theta_c[ci[s2], ci[s1]] = a
@@ -272,6 +277,11 @@ class PitzerModel:
                     f"temperature {tmin:g}–{tmax:g} °C outside the validity range {lo:g}–{hi:g} °C "
                     f"of the {self.cations[i]}-{self.anions[j]} parameters"
                 )
+        present_set = set(present)
+        for members, lo, hi, label in self._mixing_ranges:
+            if (tmin < lo or tmax > hi) and present_set.issuperset(members):
+                out.append(f"temperature {tmin:g}–{tmax:g} °C outside the validity range {lo:g}–{hi:g} °C "
+                           f"of the mixing parameter {label}")
         if key[3]:
             out.append(
                 f"ionic strength {imax:.3g} mol/kg above the model's validity limit "
