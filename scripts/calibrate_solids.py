@@ -14,6 +14,8 @@ Inputs (all in ``data/``):
 * ``reference/calibration.toml`` — which Pitzer temperature coefficients are fitted for each salt, and
   (``[ternary.*]``) which binary coefficients are fitted to ternary invariant points;
 * ``reference/ternary_eutonic.csv`` — invariant points of ternary systems; only ``role=fit`` rows are read;
+* ``reference/saturated_water_activity.csv`` — a_w of saturated solutions; its ``role=fit`` rows (except 25 °C)
+  add residuals for the salts whose entry sets ``water_activity = true``;
 * the current ``pitzer_binary.csv`` (25 °C values and the coefficients that are not fitted) and
   ``solids.csv``.
 
@@ -149,10 +151,51 @@ def calibrate_salt(model, salt: str, cfg: dict, rows: pd.DataFrame, thermo: pd.D
     x0 += [0.0] * len(extra) + [0.0] * len(pitzer)
     # linearized residuals (ln IAP - ln K) / slope first, then the solved solubilities from there
     pen = monotonic_penalty(salt, rows, start_model)
+    if cfg.get("water_activity"):
+        pen = _with_water_activity(pen, salt, cfg)
     first = fit_parameters(specs, rows, model=start_model, residual="ln_m", start=x0, penalty=pen)
     res = fit_parameters(specs, rows, model=start_model, residual="solubility",
                          start=[first.parameters["/".join(sp)] for sp in specs], penalty=pen)
     return res, specs, props
+
+
+def water_activity_rows(salt: str, data_dir: Path = DATA) -> pd.DataFrame:
+    """role=fit rows of reference/saturated_water_activity.csv for ``salt`` (except the 25 °C row, which fitted
+    the 25 °C parameters)."""
+    ref = read_csv("reference/saturated_water_activity.csv", data_dir)
+    return ref[(ref["salt"] == salt) & (ref["role"] == "fit") & (ref["temp_c"] != 25)].reset_index(drop=True)
+
+
+def _aw_text(salt: str, cfg: dict) -> str:
+    """Words for a source: the water-activity rows a salt's fit also used, if any."""
+    if not cfg.get("water_activity"):
+        return ""
+    rows = water_activity_rows(salt)
+    temps = ", ".join(f"{t:g}" for t in rows["temp_c"])
+    return (f" and to the water activity of the saturated solution at {temps} °C "
+            "(data/reference/saturated_water_activity.csv role=fit, Greenspan 1977, from memory)")
+
+
+def _with_water_activity(pen, salt: str, cfg: dict):
+    """The penalty ``pen`` with one more residual per a_w row: ln a_w of the model's own saturated solution
+    minus ln of the measured one, times the weight ``water_activity_weight`` (default 1: an error of 1 % in
+    a_w counts as one of 1 % in the saturated molality)."""
+    rows = water_activity_rows(salt)
+    weight = float(cfg.get("water_activity_weight", 1.0))
+
+    def penalty(mod):
+        out = [pen(mod)]
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", ValidityWarning)
+            for r in rows.itertuples():
+                try:
+                    aw = pk.solubility(salt, float(r.temp_c), model=mod).water_activity
+                except pk.PhasekitError:
+                    aw = 1e-3
+                out.append(np.array([weight * (np.log(aw) - np.log(float(r.water_activity)))]))
+        return np.concatenate(out)
+
+    return penalty
 
 
 def monotonic_penalty(salt: str, rows: pd.DataFrame, model, min_slope: float = 0.1):
@@ -447,7 +490,8 @@ def main(dry_run: bool = False, data_dir: Path = DATA) -> dict:
                     parts.append(f"{'/'.join(mine)} fitted in this project to the solubility of {salt} "
                                  f"{rows['temp_c'].min():g}–{rows['temp_c'].max():g} °C ({REF} role=fit, "
                                  f"{len(rows)} rows, {np.min(msat):.2g}–{np.max(msat):.2g} mol/kg, along the "
-                                 f"saturation curve only) with ln K from NBS82 dH and dCp: {txt} (choice: {cfg['why']})")
+                                 f"saturation curve only){_aw_text(salt, cfg)} with ln K from NBS82 dH and dCp: {txt} "
+                                 f"(choice: {cfg['why']})")
                     for c in ("a1", "a2"):
                         if c not in mine and getattr(row, c) != 0:  # kept, e.g. a calorimetric a1
                             parts.append(f"{c} kept as in the previous data file (not refitted)")

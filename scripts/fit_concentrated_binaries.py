@@ -117,7 +117,7 @@ def main(argv) -> int:
             continue
         src = (f"a0 fitted in this project (scripts/fit_concentrated_binaries.py) to PM73's phi and ln gamma at "
                f"0.1-6 mol/kg and a_w = {aw_sat} of saturated {salt} at 25 degC (Greenspan 1977, J. Res. NBS 81A, "
-               "89; from memory)" + (f", two-alpha form of B (alpha2 = {alpha2})" if alpha2 > 0 else ""))
+               "89, from memory)" + (f", two-alpha form of B (alpha2 = {alpha2})" if alpha2 > 0 else ""))
         names = ("beta0", "beta1", "beta2", "cphi") if alpha2 > 0 else ("beta0", "beta1", "cphi")
         values = p if alpha2 > 0 else (p[0], p[1], p[3])
         updates = {(cat, an, name): {"a0": v} for name, v in zip(names, values)}

@@ -239,8 +239,8 @@ def register(sub) -> None:
                      "the water that keeps the hot solid dissolved on cooling (--dilution auto) or a given amount, "
                      "cool to --cold °C (the cold solid crystallizes). Reports water evaporated and added, crops "
                      "with purities, yields and the recycle liquor.",
-                     ["phasekit convert --salts NaNO3=5.2,KCl=4.0 --units mol/kg --hot 75 --cold 20",
-                      "phasekit convert --salts NaNO3=5.2,KCl=4.0 --units mol/kg --hot 90 --cold 15 --dilution 0.1 "
+                     ["phasekit convert --salts NaNO3=6.0,KCl=4.0 --units mol/kg --hot 75 --cold 20",
+                      "phasekit convert --salts NaNO3=6.0,KCl=4.0 --units mol/kg --hot 90 --cold 15 --dilution 0.1 "
                       "--format json"])
     c.add_brine_options(p)
     c.add_temp(p, 75.0, "--hot", "temperature of the evaporating crystallizer, °C")

@@ -200,7 +200,7 @@ def test_session_file_and_browser_keep_the_conversion_inputs(page):
     with page.expect_download() as info:
         page.click("#session-save")
     saved = json.loads(downloaded_text(info.value))
-    assert saved["conversion"] == {"NaNO3": "5.2", "KCl": "4.0", "NaCl": "0.5", "KNO3": "", "hot_c": "80",
+    assert saved["conversion"] == {"NaNO3": "6.0", "KCl": "4.0", "NaCl": "0.5", "KNO3": "", "hot_c": "80",
                                    "cold_c": "15", "dilution": "0.1", "hot_solid": "halite", "cold_solid": "KNO3"}
     # kept in the browser
     page.reload()

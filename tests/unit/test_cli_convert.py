@@ -6,7 +6,7 @@ import pytest
 
 from phasekit.cli.main import main
 
-FEED = ["--salts", "NaNO3=5.2,KCl=4.0", "--units", "mol/kg"]
+FEED = ["--salts", "NaNO3=6.0,KCl=4.0", "--units", "mol/kg"]
 
 
 def run(capsys, *argv):

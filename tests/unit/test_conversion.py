@@ -7,7 +7,7 @@ import pytest
 import phasekit as pk
 from phasekit.errors import InputError
 
-FEED = {"Na": 5.2, "K": 4.0, "Cl": 4.0, "NO3": 5.2}
+FEED = {"Na": 6.0, "K": 4.0, "Cl": 4.0, "NO3": 6.0}
 
 
 def _cycle(feed=FEED, **kw):

@@ -1,13 +1,12 @@
 """Water activity over saturated single-salt solutions (the deliquescence humidity of the salt).
 
 Source: Greenspan 1977, "Humidity fixed points of binary saturated aqueous solutions", J. Res. Natl.
-Bur. Stand. 81A, 89-96, Table 2 (equilibrium relative humidity, %; from memory). None of these values
-was used in a fit, except LiCl and NaNO3 at 25 °C (scripts/fit_concentrated_binaries.py fitted their
-25 °C parameters to them), which are left out here (tests/validation/test_lithium.py checks LiCl at 20, 30
-and 40 °C). The model's value is the water
-activity of its own saturated solution (pk.solubility(...).water_activity): it tests the activity model
-where the solubility fits leave it free, since those fit ln K and the Pitzer temperature terms to the
-saturated molalities only.
+Bur. Stand. 81A, 89-96, Table 2 (from memory), the role=check rows of
+data/reference/saturated_water_activity.csv; its fit rows (LiCl and NaNO3 at 25 °C, NaNO3 at 10 and
+40 °C) fitted parameters and are not checked here (tests/validation/test_lithium.py checks LiCl at 20,
+30 and 40 °C). The model's value is the water activity of its own saturated solution
+(pk.solubility(...).water_activity): it tests the activity model where the solubility fits leave it
+free, since those fit ln K and the Pitzer temperature terms to the saturated molalities.
 
 Tolerance: 0.006 in a_w (Greenspan's stated uncertainties are 0.1-0.4 % RH; the rest for the
 remembered digits).
@@ -18,6 +17,7 @@ import warnings
 import pytest
 
 import phasekit as pk
+from phasekit.data_files import read_csv
 
 TOL = 0.006
 
@@ -28,33 +28,29 @@ HIGH_T = ("above 50 degC the model's a_w of the saturated solution falls below G
           "and Greenspan's polynomial is least certain at the end of its range. Not resolved; the model is not "
           "changed")
 
-CASES = [
-    ("NaCl", 0, 75.51), ("NaCl", 10, 75.67), ("NaCl", 20, 75.47), ("NaCl", 25, 75.29), ("NaCl", 30, 75.09),
-    ("NaCl", 40, 74.68), ("NaCl", 50, 74.43), ("NaCl", 60, 74.50),
-    ("NaCl", 70, 75.06),
-    pytest.param("NaCl", 80, 76.29, marks=pytest.mark.xfail(strict=True, reason=HIGH_T)),
-    ("KCl", 0, 88.61), ("KCl", 10, 86.77), ("KCl", 20, 85.11), ("KCl", 25, 84.34), ("KCl", 30, 83.62),
-    ("KCl", 40, 82.32), ("KCl", 50, 81.20),
-    pytest.param("KCl", 60, 80.25, marks=pytest.mark.xfail(strict=True, reason=HIGH_T)),
-    pytest.param("KCl", 70, 79.49, marks=pytest.mark.xfail(strict=True, reason=HIGH_T)),
-    pytest.param("KCl", 80, 78.90, marks=pytest.mark.xfail(strict=True, reason=HIGH_T)),
-    pytest.param("KNO3", 25, 93.58, marks=pytest.mark.xfail(strict=True, reason=(
+XFAIL = {
+    ("NaCl", 80): HIGH_T, ("KCl", 60): HIGH_T, ("KCl", 70): HIGH_T, ("KCl", 80): HIGH_T,
+    ("KNO3", 25): (
         "model 92.58 %: the model follows the Robinson & Stokes osmotic coefficients of KNO3 (phi about 0.56 "
         "near 3.5 mol/kg, from memory), with which a_w of the 3.79 mol/kg saturated solution (CRC 27.7 %) is "
         "0.926; Greenspan's 93.58 % implies phi = 0.48 there. The recalled sources contradict each other; "
-        "unresolved"))),
-    pytest.param("MgCl2", 25, 32.84, marks=pytest.mark.xfail(strict=True, reason=(
+        "unresolved (the boiling point of saturated KNO3 comes out 1 K low, tests/validation/test_boiling_points.py)"),
+    ("MgCl2", 25): (
         "model 33.64 %: the HMW84 Mg-Cl parameters (fitted to about 4.5 mol/kg) at the 5.8 mol/kg of the "
         "saturated solution; the bischofite solubility check at 25 degC also misses (-1.3 %, "
-        "tests/validation/test_solubility.py)"))),
-    ("K2SO4", 25, 97.30),
-]
+        "tests/validation/test_solubility.py)"),
+}
+_REF = read_csv("reference/saturated_water_activity.csv")
+CASES = [pytest.param(r.salt, int(r.temp_c), float(r.water_activity),
+                      marks=[pytest.mark.xfail(strict=True, reason=XFAIL[(r.salt, int(r.temp_c))])]
+                      if (r.salt, int(r.temp_c)) in XFAIL else [], id=f"{r.salt}-{int(r.temp_c)}")
+         for r in _REF[(_REF["role"] == "check") & (_REF["salt"] != "LiCl")].itertuples()]
 
 
 @pytest.mark.validation
-@pytest.mark.parametrize("salt,temp_c,rh", CASES)
-def test_water_activity_of_the_saturated_solution(salt, temp_c, rh):
+@pytest.mark.parametrize("salt,temp_c,expected", CASES)
+def test_water_activity_of_the_saturated_solution(salt, temp_c, expected):
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
         a_w = pk.solubility(salt, temp_c=float(temp_c)).water_activity
-    assert a_w == pytest.approx(rh / 100.0, abs=TOL)  # Greenspan 1977 (from memory)
+    assert a_w == pytest.approx(expected, abs=TOL)  # Greenspan 1977 (from memory)

@@ -181,7 +181,7 @@ def test_nano3_kno3_eutonic_at_100c():
 def _cycle(**kw):
     from phasekit.paths.conversion import hot_cold_cycle
 
-    feed = pk.Brine({"Na": 5.2, "K": 4.0, "Cl": 4.0, "NO3": 5.2})  # NaNO3 : KCl = 1.3 : 1
+    feed = pk.Brine({"Na": 6.0, "K": 4.0, "Cl": 4.0, "NO3": 6.0})  # NaNO3 : KCl = 1.5 : 1
     return _quiet(hot_cold_cycle, feed, **kw)
 
 
@@ -215,7 +215,7 @@ def test_conversion_cycle_mass_balance():
     from phasekit.chemistry.salts import salt_formula_mass
 
     r = _cycle(hot_c=75.0, cold_c=20.0)
-    feed = {"Na": 5.2, "K": 4.0, "Cl": 4.0, "NO3": 5.2}
+    feed = {"Na": 6.0, "K": 4.0, "Cl": 4.0, "NO3": 6.0}
     model = pk.default_model()
     for ion, total in feed.items():
         out = r.recycle.get(ion, 0.0) * r.recycle_water_kg

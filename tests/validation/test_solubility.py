@@ -80,11 +80,6 @@ DEVIATIONS = {
     "suspect the remembered value.",
     ("KNO3", "niter", 30.0): "model +1.05 % (25 °C +0.6 %, 10 °C -0.4 %): six coefficients on six rows "
     "interpolate 20–40 °C with a small overshoot",
-    ("NaNO3", "nitratine", 20.0): _GAP + "model +2.55 % (10 °C +2.05, 30 °C +1.8, both now within the tolerance). "
-    "NaNO3 at 8.6–21 mol/kg is far beyond the 6 mol/kg of the Pitzer & Mayorga 1973 parameters; refitting the 25 °C "
-    "parameters to the saturated solution (scripts/fit_concentrated_binaries.py: Greenspan's a_w at 10.7 mol/kg) "
-    "took 0.7 % off; the rest needs more fit rows (the handbook's 70 and 90 °C) or a solubility-fitted 25 °C set.",
-    ("NaNO3", "nitratine", 25.0): "model +2.45 %; as at 20 °C",
     ("CaCl2", "antarcticite", 25.0): "model -1.6 %: with two fit rows (0, 20 °C) and one coefficient, the 25 °C "
     "value is an extrapolation into 7.4 mol/kg where the HMW84 Ca-Cl parameters (fitted to 6 mol/kg) put "
     "ln IAP of CaCl2·6H2O close to its maximum: a small error in ln K moves the solubility a lot. The model's "
