@@ -68,7 +68,7 @@ def callbacks():
     print(f"{'app: diagram callback, cached diagram (brine/path redrawn)':<58s} {1000 * t:>12.4g} ms")
     inputs = demo_session()["ponds"]
     cols = [[p[k] for p in inputs] for k in ("name", "temp_c", "end", "value")]
-    t = median_time(lambda: pond_view.update_ponds(None, "ponds", state, *cols), repeat=3)
+    t = median_time(lambda: pond_view.update_ponds(None, "ponds", state, None, *cols), repeat=3)
     print(f"{'app: pond-train callback, demo train of 4 ponds':<58s} {1000 * t:>12.4g} ms")
 
 
