@@ -36,8 +36,8 @@ def build_parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog="phasekit",
         description=textwrap.fill("Solid–liquid equilibria of salt brines with the Pitzer model: solubilities, "
-                                  "saturation states, equilibria, phase diagrams, evaporation and cooling paths, "
-                                  "pond trains, fits, uncertainties and batch runs.", 100),
+                                  "saturation states, equilibria, phase diagrams, evaporation and cooling paths, conversion "
+                                  "cycles, pond trains, fits, uncertainties and batch runs.", 100),
         epilog="Run 'phasekit COMMAND --help' for the options and an example of each command.\n"
                "Temperatures are in °C; the units of an analysis are always named (--units).\n"
                "Predictions are estimates to be confirmed by laboratory tests.\n\n" + c.exit_codes_text(),
