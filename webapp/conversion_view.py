@@ -18,10 +18,12 @@ from dash.exceptions import PreventUpdate
 
 import phasekit as pk
 from phasekit.errors import InputError, PhasekitError
-from webapp import database, messages
+from webapp import database, diagram_source, messages
 from webapp.diagram_view import parse_temperature
+from webapp.figures import CYCLE_SYSTEM, cycle_figure
 from webapp.session import CONVERSION_KEYS, CONVERSION_SALTS
-from webapp.tables import export_buttons, stored, table
+from webapp.style import graph_config
+from webapp.tables import export_buttons, figure_buttons, stored, table
 
 #: the fields of the view: key of the session's "conversion" entry -> (id, label, hint)
 FIELDS = {
@@ -86,6 +88,18 @@ def layout(inputs: dict) -> html.Div:
             html.P(id="conv-sentence", className="pk-sentence"),
             html.Div(id="conv-db"),
             html.Div(id="conv-warn"),
+            html.Div([
+                html.H3("On the phase diagram"),
+                html.P("The Jänecke square Na⁺, K⁺ ∥ Cl⁻, NO₃⁻ (K / (Na + K) across, NO₃ / (Cl + NO₃) up, water "
+                       "not shown) at the hot temperature, with the field boundaries at the cold temperature "
+                       "dashed: the feed, the hot mother liquor (saturated with both solids) and the recycle "
+                       "liquor. Water added or evaporated does not move a point on the square.",
+                       className="pk-hint"),
+                dcc.Graph(id="conv-graph", config=graph_config("phasekit-conversion-cycle"),
+                          style={"height": "620px"}),
+                figure_buttons("conv-graph"),
+            ], id="conv-figure", style={"display": "none"}),
+            html.Div(id="conv-fig-note"),
             html.H3("Stages"), html.Div(id="conv-stages"),
         ], type="circle", delay_show=150),
         export_buttons("conversion_stages", "Download stages"),
@@ -236,12 +250,35 @@ def tables(feed, res, cold_solid: str) -> dict:
             "conversion_recycle": liquors}
 
 
+def diagram_of_cycle(feed, res, args: dict, db=None) -> tuple[dict | None, list]:
+    """The figure of the cycle on the library's square (its diagrams cached per temperature and database),
+    and notes; (None, notes) when there is no square at the hot temperature."""
+    key, model = database.key_of(db), database.model_for(db)
+    hot, cold, notes = args["hot_c"], args["cold_c"], []
+    try:
+        hot_result = diagram_source.diagram(CYCLE_SYSTEM, hot, key)
+        hot_base = diagram_source.base_figure(CYCLE_SYSTEM, hot, "triangular", "g_per_100g_water", key)
+    except (diagram_source.DiagramUnavailable, PhasekitError) as exc:
+        return None, [f"The cycle is not drawn: no phase diagram at {hot:g} °C ({exc})."]
+    try:
+        cold_result = diagram_source.diagram(CYCLE_SYSTEM, cold, key)
+    except (diagram_source.DiagramUnavailable, PhasekitError) as exc:
+        cold_result = None
+        notes.append(f"The boundaries at {cold:g} °C are not drawn: {exc}.")
+    liquors = {"feed": dict(feed.molalities), "hot liquor": dict(res.hot_liquor), "recycle liquor": dict(res.recycle)}
+    fig, more = cycle_figure(hot_base, hot_result, cold_result, liquors, hot, cold, args["hot_solid"],
+                             args["cold_solid"], model)
+    for t, result in ((hot, hot_result), (cold, cold_result)):
+        notes += [f"The square at {t:g} °C: {w}" for w in (getattr(result, "warnings", None) or [])]
+    return fig, notes + more
+
+
 def update_conversion(_run, tab, db, *values):
     """Callback: run the cycle with the database chosen (when the view is shown; the previous result is kept
     on any error, and the fields keep what was typed)."""
     if tab != "conversion":
         raise PreventUpdate
-    keep = (no_update,) * 8
+    keep = (no_update,) * 11
     fields = dict(zip(CONVERSION_KEYS, values))
     try:
         model = database.model_for(db)
@@ -263,18 +300,25 @@ def update_conversion(_run, tab, db, *values):
                        "solid harvested hot": args["hot_solid"], "solid harvested cold": args["cold_solid"]},
              "nitrates": any("NO3" in s for s in args["salts"])}
     warn = messages.warnings_box(res.warnings, "Read before use")
+    try:
+        fig, notes = diagram_of_cycle(feed, res, args, db)
+    except Exception as exc:
+        fig, notes = None, [messages.describe(exc, "drawing the cycle on the phase diagram")]
+    fig_note = html.Div([messages.note(n) for n in dict.fromkeys(notes)]) if notes else None
+    fig_out, fig_style = (no_update, {"display": "none"}) if fig is None else (fig, {})
     return (text, database.label_line(model, id="conv-db-label"), warn,
             table(dfs["conversion_stages"], id="conv-stages-table"),
             table(dfs["conversion_crops"], id="conv-crops-table"),
             table(dfs["conversion_yields"], id="conv-yields-table", digits={"recovered in " + args["cold_solid"]
                                                                              + " (%)": 3}),
-            table(dfs["conversion_recycle"], id="conv-recycle-table"), store, None)
+            table(dfs["conversion_recycle"], id="conv-recycle-table"), store, fig_out, fig_style, fig_note, None)
 
 
 def register(app):
     app.callback(Output("conv-sentence", "children"), Output("conv-db", "children"), Output("conv-warn", "children"),
                  Output("conv-stages", "children"), Output("conv-crops", "children"),
                  Output("conv-yields", "children"), Output("conv-recycle", "children"), Output("res-conv", "data"),
+                 Output("conv-graph", "figure"), Output("conv-figure", "style"), Output("conv-fig-note", "children"),
                  Output("conv-msg", "children"),
                  Input("conv-run", "n_clicks"), Input("views", "value"), Input("database", "data"),
                  *[Input(i, "value") for i in IDS])(update_conversion)

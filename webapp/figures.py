@@ -10,8 +10,10 @@ import numpy as np
 import pandas as pd
 
 from phasekit.errors import PhasekitError
+from phasekit.plotting import style as _lib_style
 from webapp import database, diagram_source
 from webapp.style import BRINE, GRID, INK, MUTED, PATH_END, axis, base_layout, solid_colour
+from webapp.systems import get_system
 
 
 def _list(v):
@@ -213,3 +215,144 @@ def pond_figure(harvest: pd.DataFrame, order: list, y_title: str) -> dict:
                        "hovertemplate": f"<b>{solid}</b><br>%{{x}}<br>%{{y:.4g}} {y_title}<extra></extra>"})
     return {"data": traces, "layout": base_layout(title={"text": "Harvest per pond", "x": 0.01}, barmode="stack",
                                                   xaxis=axis("pond"), yaxis=axis(y_title))}
+
+
+# ----------------------------------------------------------------------------- conversion cycle
+#: the system of the conversion cycle's figure (the Jänecke square Na, K // Cl, NO3)
+CYCLE_SYSTEM = "reciprocal-nitrate"
+
+
+def _solids_text(solids) -> str:
+    return " + ".join(solids) if isinstance(solids, tuple | list) else str(solids)
+
+
+def _boundary_name(solids, face, temp_c: float) -> str:
+    """Name of a field boundary of the library's square: the solids it separates (or the solid on a side)."""
+    if face == "interior":
+        return f"{_solids_text(solids)} boundary at {temp_c:g} °C"
+    return f"{_solids_text(solids)} saturation, side {face}, at {temp_c:g} °C"
+
+
+def cycle_figure(hot_base: dict, hot_result, cold_result, liquors: dict, hot_c: float, cold_c: float,
+                 hot_solid: str, cold_solid: str, model) -> tuple[dict, list]:
+    """The conversion cycle on the library's Jänecke square Na, K // Cl, NO3.
+
+    The library's figure of the square at the hot temperature (fields, boundaries, invariant points), the
+    field boundaries of its square at the cold temperature dashed on the same axes, and the feed, the hot
+    mother liquor and the cold recycle liquor placed by the library's projection, joined by arrows.
+
+    Parameters
+    ----------
+    hot_base : dict
+        The library's figure of the hot square (plotly dictionary, not modified).
+    hot_result, cold_result
+        The library's diagrams at the hot and cold temperatures (``cold_result`` may be None: no dashed lines).
+    liquors : dict
+        ``{"feed": molalities, "hot liquor": molalities, "recycle liquor": molalities}``.
+
+    Returns
+    -------
+    (figure, notes)
+    """
+    notes: list[str] = []
+    system = get_system(CYCLE_SYSTEM)
+    hot_label, cold_label = f"fields and boundaries at {hot_c:g} °C", f"boundaries at {cold_c:g} °C"
+    boundary = _lib_style.LABELS["boundary"]
+    base = [dict(t) for t in hot_base.get("data", [])]
+    groups = [c for _, c in hot_result.curves.groupby("boundary", sort=False)] if hot_result is not None else []
+    bounds = [t for t in base if t.get("name") == boundary]
+    named = len(groups) == len(bounds)  # the library draws one trace per boundary, in the order of its table
+    line = dict((bounds[0].get("line") if bounds else None) or {"color": INK, "width": 1.6})
+    data = [{"type": "scatter", "mode": "lines", "x": [None], "y": [None], "name": hot_label, "legendgroup": "hot",
+             "line": line, "hoverinfo": "skip"}]
+    i = 0
+    for t in base:
+        t.update(legendgroup="hot", showlegend=False)
+        if t.get("name") == boundary:
+            if named:
+                c = groups[i]
+                t["name"] = _boundary_name(c["solids"].iloc[0], c["face"].iloc[0], hot_c)
+                t.pop("hoverinfo", None)
+                t["hovertemplate"] = f"<b>{t['name']}</b><extra></extra>"
+            i += 1
+        elif str(t.get("name", "")).startswith("invariant point"):
+            t["name"] = f"{t['name']} at {hot_c:g} °C"
+        data.append(t)
+
+    if cold_result is not None:
+        cold_colour = _lib_style.INVARIANT_COLOUR
+        data.append({"type": "scatter", "mode": "lines", "x": [None], "y": [None], "name": cold_label,
+                     "legendgroup": "cold", "line": {"color": cold_colour, "width": 2.2, "dash": "dash"},
+                     "hoverinfo": "skip"})
+        for _, c in cold_result.curves.groupby("boundary", sort=False):
+            if c["face"].iloc[0] != "interior":  # the sides lie on the frame of the square
+                continue
+            name = _boundary_name(c["solids"].iloc[0], "interior", cold_c)
+            data.append({"type": "scatter", "mode": "lines", "x": _list(c["x"]), "y": _list(c["y"]), "name": name,
+                         "legendgroup": "cold", "showlegend": False,
+                         "line": {"color": cold_colour, "width": 2.2, "dash": "dash"},
+                         "hovertemplate": f"<b>{name}</b><extra></extra>"})
+        inv = cold_result.invariant_points
+        if len(inv):
+            sym, _, size = _lib_style.invariant_marker("invariant point")
+            data.append({"type": "scatter", "mode": "markers", "x": _list(inv["x"]), "y": _list(inv["y"]),
+                         "name": f"invariant point at {cold_c:g} °C", "legendgroup": "cold", "showlegend": False,
+                         "text": [_solids_text(s) for s in inv["solids"]],
+                         "hovertemplate": f"<b>%{{text}}</b> at {cold_c:g} °C<extra></extra>",
+                         "marker": {"symbol": f"{sym}-open", "size": size, "color": cold_colour,
+                                    "line": {"width": 2}}})
+
+    # the three liquors, by the library's projection
+    names = list(liquors)
+    df = pd.DataFrame([liquors[n] for n in names]).fillna(0.0)
+    xy, text = overlay_coordinates(system, "triangular", "molality", df, model)
+    marks = {"feed": ("quadruple point", _lib_style.PATH_COLOUR),
+             "hot liquor": ("transition point", solid_colour(hot_solid)),
+             "recycle liquor": ("corner", solid_colour(cold_solid))}
+    detail = {"feed": "feed", "hot liquor": f"hot liquor at {hot_c:g} °C, {hot_solid} separated",
+              "recycle liquor": f"recycle liquor at {cold_c:g} °C, {cold_solid} separated"}
+    pts = {}
+    for j, n in enumerate(names):
+        x, y = xy["x"][j], xy["y"][j]
+        pts[n] = (x, y)
+        key, colour = marks.get(n, ("path", _lib_style.PATH_COLOUR))
+        sym, _, size = _lib_style.MARKERS[key]
+        data.append({"type": "scatter", "mode": "markers", "x": [x], "y": [y], "name": n, "legendgroup": n,
+                     "hovertext": [f"<b>{detail.get(n, n)}</b><br>K / (Na + K) = {x:.4f}<br>NO3 / (Cl + NO3) = "
+                                   f"{y:.4f}<br>{text[j]}"], "hoverinfo": "text",
+                     "marker": {"symbol": sym, "size": max(size, 13) + 2, "color": colour,
+                                "line": {"color": _lib_style.PATH_COLOUR, "width": 1}}})
+    arrows = []
+    legs = (("feed", "hot liquor", "recycle liquor", f"evaporate at {hot_c:g} °C: {hot_solid} out"),
+            ("hot liquor", "recycle liquor", "feed", f"cool to {cold_c:g} °C: {cold_solid} out"))
+    for a, b, other, what in legs:
+        if a not in pts or b not in pts:
+            continue
+        (x0, y0), (x1, y1) = pts[a], pts[b]
+        length = np.hypot(x1 - x0, y1 - y0)
+        if not all(np.isfinite([x0, y0, x1, y1])) or length < 1e-3:
+            continue
+        arrows.append({"x": x1, "y": y1, "ax": x0, "ay": y0, "xref": "x", "yref": "y", "axref": "x", "ayref": "y",
+                       "text": "", "showarrow": True, "arrowhead": 2, "arrowsize": 1.3, "arrowwidth": 2,
+                       "arrowcolor": _lib_style.PATH_COLOUR, "standoff": 9, "startstandoff": 9})
+        # the leg's label beside its middle, on the side away from the third point (equal axis scales:
+        # the normal in data units is the normal on the screen)
+        mx, my = (x0 + x1) / 2, (y0 + y1) / 2
+        nx, ny = -(y1 - y0) / length, (x1 - x0) / length
+        if other in pts and np.all(np.isfinite(pts[other])):
+            if (pts[other][0] - mx) * nx + (pts[other][1] - my) * ny > 0:
+                nx, ny = -nx, -ny
+        arrows.append({"x": mx, "y": my, "xref": "x", "yref": "y", "text": what, "showarrow": False,
+                       "font": {"size": 11, "color": INK}, "bgcolor": "rgba(255,255,255,0.8)",
+                       "xanchor": "left" if nx >= 0 else "right", "yanchor": "bottom" if ny >= 0 else "top",
+                       "xshift": 6 * nx, "yshift": 6 * ny})
+    lay = dict(hot_base.get("layout", {}))
+    lay["title"] = {"text": f"The cycle on the Na⁺, K⁺ ∥ Cl⁻, NO₃⁻ square: fields at {hot_c:g} °C, "
+                            f"boundaries at {cold_c:g} °C dashed", "x": 0.01}
+    lay["annotations"] = [*lay.get("annotations", []), *arrows]
+    lay["legend"] = {**lay.get("legend", {}), "bgcolor": "rgba(255,255,255,0.85)", "bordercolor": GRID,
+                     "borderwidth": 1}
+    lay["hovermode"] = "closest"
+    if any(not np.isfinite(v) for p in pts.values() for v in p):
+        notes.append("A liquor cannot be placed on the square (no Na or K, or no Cl or NO3).")
+    return {"data": data, "layout": lay}, notes

@@ -10,10 +10,11 @@ from __future__ import annotations
 import csv
 import io
 import json
+import math
 import re
 
 import pytest
-from pkapp import choose, downloaded_text, idle, open_tab, shot, type_in, upload
+from pkapp import ARTIFACTS, choose, downloaded_text, idle, open_tab, shot, type_in, upload
 from playwright.sync_api import expect
 
 pytestmark = pytest.mark.app
@@ -33,6 +34,61 @@ def _export(pg, table: str, fmt: str = "csv"):
 
 def _rows(pg, table: str) -> list[dict]:
     return list(csv.DictReader(io.StringIO(downloaded_text(_export(pg, table)))))
+
+
+GRAPH = "#conv-graph .js-plotly-plot"
+
+
+def _cycle_figure(pg, hot: str) -> dict:
+    """The traces (plotly's _fullData), legend texts and arrows of the cycle's figure once it shows ``hot`` °C."""
+    pg.wait_for_function("(hot) => { const g = document.querySelector('" + GRAPH + "');"
+                         " return g && g._fullData && g.layout && g.layout.title"
+                         " && g.layout.title.text.includes('fields at ' + hot + ' °C'); }", arg=hot, timeout=60000)
+    idle(pg)
+    return pg.evaluate("() => { const g = document.querySelector('" + GRAPH + "'); return {"
+                       " traces: g._fullData.map(t => ({name: t.name || '', dash: (t.line || {}).dash || '',"
+                       "   x: Array.from(t.x || []), y: Array.from(t.y || [])})),"
+                       " legend: Array.from(g.querySelectorAll('.legend .legendtext')).map(e => e.textContent),"
+                       " arrows: (g.layout.annotations || []).filter(a => a.showarrow && a.axref === 'x')"
+                       "   .map(a => ({x: a.x, y: a.y, ax: a.ax, ay: a.ay}))}; }")
+
+
+def _point(fig: dict, name: str) -> tuple[float, float]:
+    (t,) = [t for t in fig["traces"] if t["name"] == name]
+    assert len(t["x"]) == 1
+    return t["x"][0], t["y"][0]
+
+
+def _line(fig: dict, name: str) -> list[tuple[float, float]]:
+    (t,) = [t for t in fig["traces"] if t["name"] == name]
+    return [(x, y) for x, y in zip(t["x"], t["y"]) if x is not None and y is not None]
+
+
+def _distance(p, line) -> float:
+    """Distance of a point to a polyline (plain geometry)."""
+    best = math.inf
+    for (x0, y0), (x1, y1) in zip(line, line[1:]):
+        dx, dy = x1 - x0, y1 - y0
+        t = max(0.0, min(1.0, ((p[0] - x0) * dx + (p[1] - y0) * dy) / ((dx * dx + dy * dy) or 1e-30)))
+        best = min(best, math.hypot(x0 + t * dx - p[0], y0 + t * dy - p[1]))
+    return best
+
+
+def _liquor_square(pg, column: int) -> tuple[float, float]:
+    """K / (Na + K) and NO3 / (Cl + NO3) of a liquor of the displayed mother-liquor table (1 = hot, 2 = recycle)."""
+    rows = pg.evaluate("() => Array.from(document.querySelectorAll('#conv-recycle-table tbody tr'))"
+                       ".map(r => Array.from(r.cells).map(c => c.textContent))")
+    m = {r[0].split(" (")[0]: float(r[column]) for r in rows if r[0].endswith("(mol per kg water)")}
+    return m["K"] / (m["Na"] + m["K"]), m["NO3"] / (m["Cl"] + m["NO3"])
+
+
+def _feed_square(pg) -> tuple[float, float]:
+    """K / (Na + K) and NO3 / (Cl + NO3) of the feed typed in the fields (stoichiometry of the four salts)."""
+    salt = {k: float(pg.locator(s).input_value() or 0) for k, s in
+            (("NaNO3", "#conv-nano3"), ("KCl", "#conv-kcl"), ("NaCl", "#conv-nacl"), ("KNO3", "#conv-kno3"))}
+    na, k = salt["NaNO3"] + salt["NaCl"], salt["KCl"] + salt["KNO3"]
+    cl, no3 = salt["KCl"] + salt["NaCl"], salt["NaNO3"] + salt["KNO3"]
+    return k / (na + k), no3 / (cl + no3)
 
 
 def _cycle_sentence(pg) -> str:
@@ -109,13 +165,30 @@ def test_bad_input_is_explained_and_kept(page, selector, text, expected):
 def test_feed_that_never_saturates_is_explained(page):
     open_tab(page, TAB)
     _cycle_sentence(page)
-    for selector, text in (("#conv-nacl", "6"), ("#conv-nano3", "0.01"), ("#conv-kcl", "0.01")):
+    for selector, text in (("#conv-nacl", "6"), ("#conv-nano3", "0.01")):
         type_in(page, selector, text)
+    # the figure of the last cycle computed: of these inputs, or of earlier ones if these fail already
+    hot, target = page.locator("#conv-hot").input_value(), _feed_square(page)
+    for _ in range(100):
+        before = _cycle_figure(page, hot)
+        if _point(before, "feed") == pytest.approx(target, abs=1e-6) or page.locator("#conv-msg").inner_text():
+            break
+        page.wait_for_timeout(300)
+    else:
+        raise AssertionError("the figure did not follow the feed")
+    type_in(page, "#conv-kcl", "0.01")
     msg = page.locator("#conv-msg")
     expect(msg).to_contain_text("never saturates with niter at 75 °C", timeout=30000)
     expect(msg).to_contain_text("feed")
     for selector, text in (("#conv-nacl", "6"), ("#conv-nano3", "0.01"), ("#conv-kcl", "0.01")):
         expect(page.locator(selector)).to_have_value(text)
+    # the figure of the last cycle stays as it was, nothing broken
+    idle(page)
+    assert "Traceback" not in page.content()
+    expect(page.locator("#conv-figure")).to_be_visible()
+    after = _cycle_figure(page, page.locator("#conv-hot").input_value())
+    for name in ("feed", "hot liquor", "recycle liquor"):
+        assert _point(after, name) == _point(before, name)
 
 
 def test_equivalent_feed_warns_that_sylvite_joins_the_hot_crop(page):
@@ -155,6 +228,69 @@ def test_cycle_computes_with_the_database_chosen(page):
     assert items["database"] == "embedded database + overlay test sylvite +0.2"
     assert items["feed"] == "NaNO3 4, KCl 4 mol per kg water"
     assert any("oxidizers" in str(v) for v in about.loc[about["item"] == "caution", "value"])
+
+
+def test_cycle_is_drawn_on_the_hot_square_with_the_cold_boundaries(page):
+    open_tab(page, TAB)
+    _cycle_sentence(page)
+    hot, cold = page.locator("#conv-hot").input_value(), page.locator("#conv-cold").input_value()
+    fig = _cycle_figure(page, hot)
+    names = [t["name"] for t in fig["traces"]]
+    assert fig["legend"] == [f"fields and boundaries at {hot} °C", f"boundaries at {cold} °C", "feed", "hot liquor",
+                             "recycle liquor"]
+    fields = sorted(n.split(" (")[0] for n in names if n.endswith("(crystallization field)"))
+    assert fields == ["halite", "niter", "nitratine", "sylvite"]
+    hot_bounds = [t for t in fig["traces"] if t["name"].endswith(f"boundary at {hot} °C")]
+    cold_bounds = [t for t in fig["traces"] if t["name"].endswith(f"boundary at {cold} °C")]
+    assert len(hot_bounds) >= 4 and len(cold_bounds) == len(hot_bounds)
+    assert all(t["dash"] == "dash" for t in cold_bounds) and all(t["dash"] != "dash" for t in hot_bounds)
+    # the niter field grows on cooling: its boundary with sylvite reaches lower on the KCl–KNO3 side
+    assert min(y for _, y in _line(fig, f"niter + sylvite boundary at {cold} °C")) < \
+        min(y for _, y in _line(fig, f"niter + sylvite boundary at {hot} °C")) - 0.05
+    # the feed where its salts put it
+    feed = _point(fig, "feed")
+    assert feed == pytest.approx(_feed_square(page), abs=1e-6)
+    # the hot liquor: the table's, on the halite–niter boundary of the hot square; the recycle is not on it
+    liquor, recycle = _point(fig, "hot liquor"), _point(fig, "recycle liquor")
+    assert liquor == pytest.approx(_liquor_square(page, 1), abs=1e-3)
+    assert recycle == pytest.approx(_liquor_square(page, 2), abs=1e-3)
+    boundary = _line(fig, f"halite + niter boundary at {hot} °C")
+    assert _distance(liquor, boundary) < 2e-3
+    assert _distance(recycle, boundary) > 0.05
+    # arrows feed → hot liquor → recycle
+    legs = [((a["ax"], a["ay"]), (a["x"], a["y"])) for a in fig["arrows"]]
+    assert legs == [(pytest.approx(feed, abs=1e-9), pytest.approx(liquor, abs=1e-9)),
+                    (pytest.approx(liquor, abs=1e-9), pytest.approx(recycle, abs=1e-9))]
+    # above the tables
+    box = page.locator("#conv-figure").bounding_box()
+    assert box["y"] + box["height"] <= page.locator("#conv-stages-table").bounding_box()["y"]
+    ARTIFACTS.mkdir(parents=True, exist_ok=True)
+    page.locator("#conv-figure").screenshot(path=str(ARTIFACTS / "33-conversion-figure.png"))
+    with page.expect_download() as info:
+        page.click("[id='" + json.dumps({"fmt": "svg", "graph": "conv-graph", "type": "figexport"},
+                                        separators=(",", ":")) + "']")
+    svg = downloaded_text(info.value)
+    assert "<svg" in svg[:500] and "recycle liquor" in svg
+
+
+def test_hot_temperature_moves_the_hot_liquor(page):
+    open_tab(page, TAB)
+    _cycle_sentence(page)
+    hot, cold = page.locator("#conv-hot").input_value(), page.locator("#conv-cold").input_value()
+    before = _cycle_figure(page, hot)
+    hotter = f"{float(hot) + 15:g}"
+    type_in(page, "#conv-hot", hotter)
+    after = _cycle_figure(page, hotter)
+    assert after["legend"][0] == f"fields and boundaries at {hotter} °C"
+    old, new = _point(before, "hot liquor"), _point(after, "hot liquor")
+    assert math.hypot(new[0] - old[0], new[1] - old[1]) > 0.01
+    assert new == pytest.approx(_liquor_square(page, 1), abs=1e-3)
+    assert _distance(new, _line(after, f"halite + niter boundary at {hotter} °C")) < 2e-3
+    assert _distance(new, _line(before, f"halite + niter boundary at {hot} °C")) > 0.01
+    # the feed and the cold boundaries do not move
+    assert _point(after, "feed") == _point(before, "feed")
+    name = f"halite + niter boundary at {cold} °C"
+    assert _line(after, name) == _line(before, name)
 
 
 def test_nitrate_square_draws_four_fields_with_the_brine(page):
@@ -231,3 +367,20 @@ def test_older_session_files_get_the_default_cycle_and_values_stay_as_typed():
     out, _ = session.normalise({"brine": {"rows": []}, "conversion": {"hot_c": "hot", "KCl": 4, "extra": "x"}})
     assert out["conversion"]["hot_c"] == "hot" and out["conversion"]["KCl"] == "4"
     assert set(out["conversion"]) == set(session.CONVERSION_KEYS)
+
+
+def test_cycle_without_a_square_hides_the_figure_and_says_why(monkeypatch):
+    from phasekit.errors import PhasekitError
+    from webapp import conversion_view, diagram_source
+    from webapp.demo import demo_session
+
+    def no_square(*args, **kwargs):
+        raise PhasekitError("invented failure of the square")
+
+    values = [demo_session()["conversion"][k] for k in conversion_view.CONVERSION_KEYS]
+    out = conversion_view.update_conversion(None, "conversion", None, *values)
+    assert out[8]["data"] and out[9] == {} and out[-1] is None
+    monkeypatch.setattr(diagram_source, "diagram", no_square)
+    out = conversion_view.update_conversion(None, "conversion", None, *values)
+    assert out[0] and out[9] == {"display": "none"} and out[-1] is None  # the cycle is shown, the figure hidden
+    assert "invented failure of the square" in str(out[10])
