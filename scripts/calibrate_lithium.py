@@ -33,7 +33,7 @@ ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT))
 sys.path.insert(0, str(ROOT / "scripts"))
 
-from calibrate_solids import _ternary_molalities, rewrite_csv  # noqa: E402
+from calibrate_solids import rewrite_csv, ternary_ln_iap  # noqa: E402
 
 from phasekit.data_files import read_csv  # noqa: E402
 from phasekit.errors import ValidityWarning  # noqa: E402
@@ -67,11 +67,8 @@ def fit(data_dir: Path = DATA):
         with warnings.catch_warnings():
             warnings.simplefilter("ignore", ValidityWarning)
             for _, r in sel.iterrows():
-                m = _ternary_molalities(model, r)
                 t = float(r["temp_c"])
-                ln_g, _, ln_aw, _, _ = model.compute(m, t)
-                iap = model.solids.ln_iap(m, ln_g, ln_aw)[0]
-                lnk = model.solids.ln_k(t)
+                iap, lnk = ternary_ln_iap(model, r)
                 vals.append(float(iap[model.solids.index[solid]]))
                 for s in str(r["solids"]).split("+"):
                     if s != solid:

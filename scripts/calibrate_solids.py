@@ -294,6 +294,14 @@ def _ternary_molalities(model, row) -> np.ndarray:
     return m
 
 
+def ternary_ln_iap(model, row) -> tuple[np.ndarray, np.ndarray]:
+    """(ln IAP, ln K) of every solid at a ternary point given in mass-% of its two salts."""
+    m = _ternary_molalities(model, row)
+    t = float(row["temp_c"])
+    ln_g, _, ln_aw, _, _ = model.compute(m, t)
+    return model.solids.ln_iap(m, ln_g, ln_aw)[0], model.solids.ln_k(t)
+
+
 def calibrate_ternary(model, name: str, cfg: dict, settings: dict, ref_fit, ref_tern, thermo):
     """Fit the binary coefficients listed in ``cfg['fit']`` to the ternary invariant points of ``name``.
 
@@ -334,13 +342,10 @@ def calibrate_ternary(model, name: str, cfg: dict, settings: dict, ref_fit, ref_
         with warnings.catch_warnings():
             warnings.simplefilter("ignore", ValidityWarning)
             for _, row in pts.iterrows():
-                m = _ternary_molalities(mod, row)
-                t = float(row["temp_c"])
-                ln_g, _, ln_aw, _, _ = mod.compute(m, t)
-                iap = mod.solids.ln_iap(m, ln_g, ln_aw)[0]
+                iap, lnk = ternary_ln_iap(mod, row)
                 for s in str(row["solids"]).split("+"):
                     k = mod.solids.index[s]
-                    out.append(iap[k] - mod.solids.ln_k(t)[k])
+                    out.append(iap[k] - lnk[k])
         return np.array(out)
 
     # started from zero, as the salts' coefficients, so the result does not depend on the files' values

@@ -36,16 +36,16 @@ of PM73 to 6 mol/kg, 0.766 at saturation): β0, β1, C^φ fitted the same way (�
 
 from __future__ import annotations
 
-import csv
-import io
 import sys
 from pathlib import Path
 
 import numpy as np
+import pandas as pd
 from scipy.optimize import least_squares
 
 ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT))
+sys.path.insert(0, str(ROOT / "scripts"))
 
 
 from phasekit.chemistry.species import M_WATER  # noqa: E402
@@ -129,44 +129,20 @@ def main(argv) -> int:
 
 
 def rewrite_rows(cation: str, anion: str, updates: dict, src: str) -> int:
-    """Set a0 of the cation-anion rows (adding beta2 and alpha2 rows when missing), keeping a1..a4."""
+    """Set a0 of the cation-anion rows of data/pitzer_binary.csv (calibrate_solids.rewrite_csv), with ``src``
+    as the a0 part of their source and the rest of the source (the temperature terms) kept."""
+    from calibrate_solids import rewrite_csv
+
     path = ROOT / "data" / "pitzer_binary.csv"
-    lines = path.read_text().splitlines()
-    header_i = next(i for i, ln in enumerate(lines) if ln.startswith("cation,"))
-    cols = lines[header_i].split(",")
-    done, out = set(), []
-    for ln in lines:
-        if ln.startswith(f"{cation},{anion},"):
-            row = next(csv.reader(io.StringIO(ln)))
-            key = tuple(row[:3])
-            if key in updates:
-                row[cols.index("a0")] = f"{updates[key]['a0']:.9g}"
-                old = row[cols.index("source")]
-                rest = old.split(";", 1)[1].strip() if ";" in old else ""
-                row[cols.index("source")] = src + ("; " + rest if rest else "")
-                done.add(key)
-                buf = io.StringIO()
-                csv.writer(buf, lineterminator="").writerow(row)
-                ln = buf.getvalue()
-        out.append(ln)
-    last = max(i for i, ln in enumerate(out) if ln.startswith(f"{cation},{anion},"))
-    template = next(csv.reader(io.StringIO(out[last])))
+    rows = pd.read_csv(path, comment="#", dtype=str).set_index(["cation", "anion", "parameter"])
+    out = {}
     for key, upd in updates.items():
-        if key in done:
-            continue
-        row = list(template)
-        row[2] = key[2]
-        row[cols.index("a0")] = f"{upd['a0']:.9g}"
-        for c in ("a1", "a2", "a3", "a4"):
-            row[cols.index(c)] = "0"
-        row[cols.index("source")] = src + "; no temperature dependence"
-        buf = io.StringIO()
-        csv.writer(buf, lineterminator="").writerow(row)
-        last += 1
-        out.insert(last, buf.getvalue())
-        done.add(key)
-    path.write_text("\n".join(out) + "\n")
-    return len(done)
+        if key not in rows.index:
+            raise SystemExit(f"data/pitzer_binary.csv has no {'-'.join(key)} row: add it (a1..a4 = 0) first")
+        old = rows.loc[key, "source"]
+        rest = old.split(";", 1)[1].strip() if ";" in old else ""
+        out[key] = {"a0": upd["a0"], "source": src + ("; " + rest if rest else "")}
+    return rewrite_csv(path, ("cation", "anion", "parameter"), out)
 
 
 if __name__ == "__main__":

@@ -226,15 +226,12 @@ class TernarySystem(System):
 class ReciprocalSystem(System):
     """Na+, K+ // Cl−, Y – H2O in Jänecke's square, Y = SO4²− or NO3− (see the module docstring)."""
 
-    CATIONS = ("Na", "K")
-    ANIONS = ("Cl", "SO4")
     SECOND_ANIONS = ("SO4", "NO3")
 
     def __init__(self, model, exclude=(), anion: str = "SO4"):
         if anion not in self.SECOND_ANIONS:
             raise InputError("anion", anion, "'SO4' (Na, K // Cl, SO4) or 'NO3' (Na, K // Cl, NO3)")
         self.anion = anion
-        self.ANIONS = ("Cl", anion)
         #: mol of the second anion per equivalent
         self.per_eq = 0.5 if anion == "SO4" else 1.0
         ions = ["Na", "K", "Cl", anion]

@@ -33,7 +33,7 @@ import pandas as pd
 from scipy.optimize import brentq
 
 from phasekit.equilibrium.common import composition_array
-from phasekit.equilibrium.saturation import _solid_mass, saturation_indices
+from phasekit.equilibrium.saturation import _solid_mass
 from phasekit.equilibrium.solver import solve_robust
 from phasekit.errors import ConvergenceError, InputError, RangeError, ValidityWarning
 from phasekit.paths.evaporation import _model, _temp
@@ -83,10 +83,6 @@ class CycleResult:
 def _state(model, b, water, t, exclude=()):
     cands = [k for k, name in enumerate(model.solids.names) if name not in exclude]
     return solve_robust(model, b, water, t, candidates=cands)
-
-
-def _si(model, st, k, t) -> float:
-    return float(saturation_indices(model, st.m[None, :], t)[0, k])
 
 
 def _crop(model, st) -> dict:
@@ -154,7 +150,7 @@ def hot_cold_cycle(feed, hot_c: float = 90.0, cold_c: float = 20.0, hot_solid: s
         warnings.simplefilter("always", ValidityWarning)
         # 1. hot stage: water left at which the cold solid saturates
         def cold_si_hot(w):
-            return _si(model, _state(model, m0 * 1.0, w, th, exclude=(cs,)), k_cs, th)
+            return float(_state(model, m0, w, th, exclude=(cs,)).si[k_cs])
 
         if cold_si_hot(1.0) >= 0:
             raise InputError("feed", "saturated with " + cs + f" at {th:g} °C",
@@ -167,13 +163,13 @@ def hot_cold_cycle(feed, hot_c: float = 90.0, cold_c: float = 20.0, hot_solid: s
                                  f"a feed from which {cs} can crystallize")
             hi, lo = lo, max(lo * STEP, W_MIN)
         w_hot = brentq(cold_si_hot, lo, hi, xtol=1e-10, rtol=1e-10)
-        hot = _state(model, m0 * 1.0, w_hot, th, exclude=(cs,))
+        hot = _state(model, m0, w_hot, th, exclude=(cs,))
         hot_solids = _crop(model, hot)
         b = hot.m * hot.w  # mother liquor, mol
 
         # 2. dilution: least water that keeps the hot solid dissolved at the cold temperature
         def hot_si_cold(add):
-            return _si(model, _state(model, b, hot.w + add, tc, exclude=(hs,)), k_hs, tc)
+            return float(_state(model, b, hot.w + add, tc, exclude=(hs,)).si[k_hs])
 
         if dilution == "auto":
             add = 0.0
@@ -188,7 +184,7 @@ def hot_cold_cycle(feed, hot_c: float = 90.0, cold_c: float = 20.0, hot_solid: s
             try:
                 add = float(dilution)
             except (TypeError, ValueError):
-                raise InputError("dilution", dilution, "'auto' or kg of water per kg of feed water (>= 0)") from None
+                add = -1.0
             if not np.isfinite(add) or add < 0:
                 raise InputError("dilution", dilution, "'auto' or kg of water per kg of feed water (>= 0)")
         # 3. cold stage

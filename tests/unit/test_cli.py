@@ -12,6 +12,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 import pytest
+from cli_runner import run, run_json
 
 import phasekit as pk
 from phasekit.cli import common
@@ -22,16 +23,6 @@ ROOT = Path(__file__).resolve().parents[2]
 SEAWATER_LIKE = "Na=10780,K=399,Mg=1290,Ca=412,Cl=19350,SO4=2710"  # invented intake of the demo works, mg/kg
 
 
-def run(capsys, *argv):
-    code = main(list(argv))
-    out, err = capsys.readouterr()
-    return code, out, err
-
-
-def run_json(capsys, *argv):
-    code, out, err = run(capsys, *argv, "--format", "json")
-    assert code == 0, err
-    return json.loads(out)
 
 
 def _balanced_intake():

@@ -3,16 +3,9 @@
 import json
 
 import pytest
-
-from phasekit.cli.main import main
+from cli_runner import run
 
 FEED = ["--salts", "NaNO3=6.0,KCl=4.0", "--units", "mol/kg"]
-
-
-def run(capsys, *argv):
-    code = main(list(argv))
-    out, err = capsys.readouterr()
-    return code, out, err
 
 
 def test_convert_json_reports_crops_yields_and_database(capsys):

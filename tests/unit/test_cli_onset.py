@@ -1,9 +1,9 @@
 """Command line: ``phasekit onset`` (first saturation on evaporation, with Monte Carlo uncertainty)."""
 
-import json
 import warnings
 
 import pytest
+from cli_runner import run_json
 
 import phasekit as pk
 from phasekit.cli.main import main
@@ -14,16 +14,13 @@ BRINE = ["--salts", "NaNO3=1.5,KCl=1.0", "--units", "mol/kg", "--temp", "25"]
 EXAMPLE = str(data_dir() / "overlays" / "halite_pbb1977.toml")
 
 
-def run_json(capsys, *argv):
-    code = main(list(argv) + ["--format", "json"])
-    out, err = capsys.readouterr()
-    assert code == 0, err
-    doc = json.loads(out)
+def scalars(capsys, *argv):
+    doc = run_json(capsys, *argv)
     return doc.get("scalars", doc)
 
 
 def test_nominal_onset_is_the_library_value(capsys):
-    sc = run_json(capsys, "onset", *BRINE)
+    sc = scalars(capsys, "onset", *BRINE)
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
         lib = onset_concentration_factor(pk.default_model(), pk.Brine.from_salts({"NaNO3": 1.5, "KCl": 1.0},
@@ -33,17 +30,17 @@ def test_nominal_onset_is_the_library_value(capsys):
 
 
 def test_stated_uncertainties_spread_the_onset(capsys):
-    sc = run_json(capsys, "onset", *BRINE, "--sd", "psi:Cl:NO3:K=0.002", "--sd", "theta:Cl:NO3=0.005",
+    sc = scalars(capsys, "onset", *BRINE, "--sd", "psi:Cl:NO3:K=0.002", "--sd", "theta:Cl:NO3=0.005",
                   "--samples", "20")
     assert sc["std"] > 0 and sc["p2_5"] <= sc["p50"] <= sc["p97_5"]
-    zero = run_json(capsys, "onset", *BRINE, "--sd", "theta:Cl:NO3=0", "--samples", "5")
+    zero = scalars(capsys, "onset", *BRINE, "--sd", "theta:Cl:NO3=0", "--samples", "5")
     assert zero["std"] == pytest.approx(0.0, abs=1e-12)
 
 
 def test_overlay_stderr_is_sampled(capsys):
     args = ["onset", "--salts", "NaCl=3.0", "--units", "mol/kg", "--temp", "25", "--overlay", EXAMPLE,
             "--overlay-stderr", "--samples", "20"]
-    sc = run_json(capsys, *args)
+    sc = scalars(capsys, *args)
     assert sc["std"] > 0 and "halite after Potter" in sc["database"]
 
 

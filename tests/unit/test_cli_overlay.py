@@ -6,7 +6,6 @@ at 25 °C (a0) raised or lowered by 0.2 from the embedded value, and one naming 
 """
 
 import io
-import json
 import math
 import warnings
 from pathlib import Path
@@ -14,26 +13,16 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 import pytest
+from cli_runner import run, run_json
 
 import phasekit as pk
 from phasekit.cli import common
-from phasekit.cli.main import main
 
 PLUS_LABEL = "embedded database + overlay test sylvite +0.2"
 SHIFT = 0.2 / math.log(10)  # of sylvite's saturation index at 25 °C
 KCL_NACL = "Na=2.0,K=1.0,Cl=3.0"  # mol/kg, undersaturated
 
 
-def run(capsys, *argv):
-    code = main(list(argv))
-    out, err = capsys.readouterr()
-    return code, out, err
-
-
-def run_json(capsys, *argv):
-    code, out, err = run(capsys, *argv, "--format", "json")
-    assert code == 0, err
-    return json.loads(out)
 
 
 @pytest.fixture()

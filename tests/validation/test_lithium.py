@@ -46,6 +46,7 @@ from phasekit.paths import ion_loss_point
 
 REF = read_csv("reference/binary_solubility.csv")
 TERN = read_csv("reference/lithium_invariants.csv")
+AW = read_csv("reference/saturated_water_activity.csv")  # Greenspan 1977 (from memory)
 BRINE = read_csv("demo/lithium_brine.csv")  # INVENTED demo brine (see the file header)
 
 TOL_BINARY = {"LiCl": 0.010, "Li2SO4": 0.020}  # as tests/validation/test_solubility.py
@@ -140,9 +141,11 @@ def test_licl_dihydrate_below_the_transition():
 
 
 @pytest.mark.validation
-@pytest.mark.parametrize("temp_c,a_w", [(20.0, 0.1131), (30.0, 0.1128), (40.0, 0.1121)])
+@pytest.mark.parametrize("temp_c,a_w", [(float(r.temp_c), float(r.water_activity)) for r in AW.itertuples()
+                                         if r.salt == "LiCl" and r.role == "check"])
 def test_water_activity_of_saturated_licl(temp_c, a_w):
-    # Greenspan 1977, J. Res. Natl. Bur. Stand. 81A, 89 (from memory); the 25 degC value (0.1130) is a fit point
+    # Greenspan 1977, J. Res. Natl. Bur. Stand. 81A, 89 (from memory): the check rows (20, 30, 40 degC) of
+    # data/reference/saturated_water_activity.csv; its 25 degC row is a fit point
     assert pk.solubility("LiCl", temp_c).water_activity == pytest.approx(a_w, abs=0.01)
 
 
