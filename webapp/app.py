@@ -31,7 +31,7 @@ from webapp.uploads import MAX_UPLOAD_BYTES
 
 def create_app() -> Dash:
     """The Dash application (not yet serving)."""
-    app = Dash(__name__, title="phasekit — brine workbench", update_title=None, suppress_callback_exceptions=False)
+    app = Dash(__name__, title=layout.PAGE_TITLE, update_title=None, suppress_callback_exceptions=False)
     # uploads are checked in the browser (2 MB); this refuses anything far larger at the door
     app.server.config["MAX_CONTENT_LENGTH"] = 4 * MAX_UPLOAD_BYTES
     app.layout = layout.build

@@ -43,13 +43,17 @@ TABS = [
     ("leach", "Dissolution rate", leach_view),
 ]
 
+# the words under the name in the header, also the page title (webapp.app)
+SUBTITLE = "salt crystallization from brines"
+PAGE_TITLE = f"phasekit — {SUBTITLE}"
+
 
 def build() -> html.Div:
     """The page, filled with the demo inputs (replaced on load by the inputs kept in the browser)."""
     inputs = demo_session()
     return html.Div([
         html.Header([
-            html.Div([html.H1(["phasekit ", html.Span("brine workbench", className="pk-sub")])]),
+            html.Div([html.H1(["phasekit ", html.Span(SUBTITLE, className="pk-sub")])]),
             session_view.header_controls(),
         ], className="pk-header"),
         html.Div(id="session-msg", **{"aria-live": "polite"}),
