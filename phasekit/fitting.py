@@ -234,6 +234,16 @@ def _select(db, spec, table=None):
     return name, t, sel
 
 
+def parameter_value(model, spec) -> float:
+    """The value in the model's database of one coefficient, spec as for :func:`fit_parameters` (with the
+    coefficient a0..a4 last, e.g. ``("psi", "K", "Mg", "SO4", "a1")``); a missing θ or ψ is 0."""
+    base, coef = _split(spec)
+    if coef not in tempfn.COEFFS:
+        raise InputError("parameter", spec, f"a coefficient among {tempfn.COEFFS}")
+    _, table, sel = _select(model.db, base)
+    return float(table.loc[sel, coef].iloc[0])
+
+
 def with_parameters(model, specs, values):
     """A new model whose database has each parameter spec set to its value.
 

@@ -7,7 +7,9 @@ One command regenerates every value this calibration owns from the data files::
 
 Inputs (all in ``data/``):
 
-* ``reference/binary_solubility.csv`` — solubilities; only the rows with ``role=fit`` are read;
+* ``reference/measured_*.csv`` — published solubilities of the single salts (kind "saturation" of the
+  "<salt>-H2O" systems, :func:`phasekit.calibration.measurements.binary_solubility_table`); only the rows
+  with ``role=fit`` are read, within the salt's ``fit_t_min_c``/``fit_t_max_c`` of calibration.toml if set;
 * ``reference/thermochemistry.csv`` — ΔfH° and Cp° of ions, water and solids (NBS82), giving each
   solid's ΔH°sol and ΔCp°sol, hence a3 and a4 of its ln K(T) (van 't Hoff, constant ΔCp°):
   a3 = -ΔH°/R + ΔCp° Tr/R, a4 = ΔCp°/R (see ``phasekit/thermo/tempfn.py``);
@@ -26,16 +28,15 @@ linearized residuals). Before the salts, each ``[ternary.*]`` entry fits its bin
 (from zero) to the ln IAP - ln K of its solids at its invariant points, the listed salts' own
 calibration being redone at every trial value (:func:`calibrate_ternary`); the salts' final fits
 then hold those values. ΔH° and ΔCp° are never fitted. The validity
-range of a solid is the temperature range of its fit rows, widened to the model's transition temperatures
+range of a solid is the temperature range of its fit and check rows, widened to the model's transition temperatures
 in pure water (found by ``phasekit.polytherm``) and to 25 °C (where ΔH° and ΔCp° hold); that of a fitted
 Pitzer pair is the range of the fit rows
-(with 25 °C), and its ``m_max`` the highest saturated molality fitted. The 'check' rows are not read.
+(with 25 °C), and its ``m_max`` the highest saturated molality fitted. The 'check' rows are not fitted; their
+temperature span (with the fit rows') is the validity range written, since the test suite checks the model there.
 """
 
 from __future__ import annotations
 
-import csv
-import io
 import math
 import sys
 import tomllib
@@ -49,6 +50,13 @@ ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT))
 
 import phasekit as pk  # noqa: E402
+from phasekit.calibration.measurements import (  # noqa: E402
+    binary_solubility_table,
+    measurement_files,
+    read_measurements,
+)
+from phasekit.calibration.tables import fmt as _fmt  # noqa: E402
+from phasekit.calibration.tables import rewrite_csv  # noqa: E402,F401  (calibrate_lithium imports it from here)
 from phasekit.data_files import read_csv  # noqa: E402
 from phasekit.errors import ValidityWarning  # noqa: E402
 from phasekit.fitting import data_molalities, fit_parameters  # noqa: E402
@@ -58,18 +66,90 @@ from phasekit.thermo.database import Database  # noqa: E402
 
 DATA = ROOT / "data"
 R = 8.314462618  # J/(mol K), CODATA 2018 (exact in the 2019 SI)
-REF = "data/reference/binary_solubility.csv"
+REF = "data/reference/measured_binaries.csv"
 
 
 # ----------------------------------------------------------------------------- inputs
 def load_inputs(data_dir: Path = DATA):
     """(model, fit rows, thermochemistry table, calibration settings) from the data files."""
     model = Model(Database(data_dir))
-    ref = read_csv("reference/binary_solubility.csv", data_dir)
+    ref = binary_solubility_table(read_measurements(measurement_files(data_dir / "reference")))
     thermo = read_csv("reference/thermochemistry.csv", data_dir).set_index("name")
     with open(data_dir / "reference" / "calibration.toml", "rb") as fh:
         settings = tomllib.load(fh)["salts"]
-    return model, ref[ref["role"] == "fit"].reset_index(drop=True), thermo, settings
+    keep = pd.Series(True, index=ref.index)
+    for salt, cfg in settings.items():
+        mine = ref["salt"] == salt
+        keep &= ~mine | ref["temp_c"].between(cfg.get("fit_t_min_c", -np.inf), cfg.get("fit_t_max_c", np.inf))
+        keep &= ~mine | ref["solid"].isin(cfg["solids"])
+    within = ref[keep].reset_index(drop=True)
+    return model, within[within["role"] == "fit"].reset_index(drop=True), thermo, settings
+
+
+def span_rows(data_dir: Path = DATA) -> pd.DataFrame:
+    """Fit and check rows of the calibrated solids within their salts' windows: their temperature span is the
+    validity range written for a solid and its Pitzer pair (the check rows, never fitted, are where the test
+    suite shows the model holding: tests/validation/test_solubility.py)."""
+    ref = binary_solubility_table(read_measurements(measurement_files(data_dir / "reference")))
+    with open(data_dir / "reference" / "calibration.toml", "rb") as fh:
+        settings = tomllib.load(fh)["salts"]
+    keep = pd.Series(False, index=ref.index)
+    for salt, cfg in settings.items():
+        keep |= ((ref["salt"] == salt) & ref["solid"].isin(cfg["solids"])
+                 & ref["temp_c"].between(cfg.get("fit_t_min_c", -np.inf), cfg.get("fit_t_max_c", np.inf)))
+    return ref[keep].reset_index(drop=True)
+
+
+def transition_rows(data_dir: Path = DATA) -> pd.DataFrame:
+    """role=fit transition points of one salt's solids in water (kind "invariant" of a "<salt>-H2O" system
+    with two solids) from the measurement files: ``salt``, ``temp_c``, ``solid_a``, ``solid_b``, ``source``."""
+    meas = read_measurements(measurement_files(data_dir / "reference"))
+    rows = []
+    for r in meas.itertuples():
+        parts = r.system.split("-")
+        if r.kind == "invariant" and r.role == "fit" and len(parts) == 2 and len(r.solid_list) == 2:
+            rows.append({"salt": parts[0], "temp_c": float(r.temp_c), "solid_a": r.solid_list[0],
+                         "solid_b": r.solid_list[1], "source": f"{r.reference} ({r.file})"})
+    return pd.DataFrame(rows, columns=["salt", "temp_c", "solid_a", "solid_b", "source"])
+
+
+#: standard uncertainty (K) given to every measured transition temperature, and the ln m residual that a miss
+#: of that size counts as: a transition 2 K off weighs as much as a solubility 1 % off
+TRANSITION_SIGMA_K = 2.0
+TRANSITION_WEIGHT = 0.01
+
+
+def _with_transitions(pen, rows: pd.DataFrame):
+    """The penalty ``pen`` with one residual per measured transition point (solids A and B of one salt): the
+    saturation index of B in the model's solution saturated with A at the measured temperature, divided by
+    d(ln K_A - ln K_B)/dT (so, to first order, the error of the transition temperature in K), over
+    TRANSITION_SIGMA_K, times TRANSITION_WEIGHT."""
+    if rows.empty:
+        return pen
+
+    def penalty(mod):
+        out = [pen(mod)]
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", ValidityWarning)
+            for r in rows.itertuples():
+                ka, kb = mod.solids.index[r.solid_a], mod.solids.index[r.solid_b]
+                t = float(r.temp_c)
+                try:
+                    sat = pk.solubility(r.solid_a, t, model=mod)
+                    m = np.zeros((1, len(mod.species)))
+                    for sp, n in mod.solid_stoichiometry(r.solid_a).items():
+                        if sp != "H2O":
+                            m[0, mod.index[sp]] = n * sat.molality
+                    ln_g, _, ln_aw, _, _ = mod.compute(m, t)
+                    si_b = mod.solids.ln_iap(m, ln_g, ln_aw)[0, kb] - mod.solids.ln_k(t)[kb]
+                    slope = (mod.solids.coeffs[ka] - mod.solids.coeffs[kb]) @ tempfn.basis_dt(t + 273.15)
+                    miss = si_b / slope if abs(slope) > 1e-9 else 50.0
+                except pk.PhasekitError:
+                    miss = 50.0
+                out.append(np.array([TRANSITION_WEIGHT * min(abs(miss), 50.0) * np.sign(miss) / TRANSITION_SIGMA_K]))
+        return np.concatenate(out)
+
+    return penalty
 
 
 def load_ternary(data_dir: Path = DATA):
@@ -85,7 +165,7 @@ def fit_rows_of(ref_fit: pd.DataFrame, salt: str) -> pd.DataFrame:
     rows = ref_fit[ref_fit["salt"] == salt]
     return pd.DataFrame({"salt": rows["salt"].to_numpy(), "temp_c": rows["temp_c"].to_numpy(float),
                          "mass_percent": rows["mass_percent"].to_numpy(float),
-                         "solids": rows["solid"].to_numpy()})
+                         "solids": rows["solid"].to_numpy(), "source": rows["source"].to_numpy()})
 
 
 def solution_properties(model, solid: str, thermo: pd.DataFrame) -> tuple[float, float]:
@@ -114,8 +194,10 @@ def _pair(model, salt):
     return cat, an
 
 
-def calibrate_salt(model, salt: str, cfg: dict, rows: pd.DataFrame, thermo: pd.DataFrame):
-    """Fit one salt. Returns (FitResult, specs, {solid: (dH, dCp)})."""
+def calibrate_salt(model, salt: str, cfg: dict, rows: pd.DataFrame, thermo: pd.DataFrame,
+                   transitions: pd.DataFrame | None = None, t_span=None):
+    """Fit one salt (solubility rows ``rows``, measured transition points ``transitions`` of its solids).
+    Returns (FitResult, specs, {solid: (dH, dCp)})."""
     cat, an = _pair(model, salt)
     solids = model.db.solids.copy()
     props = {}
@@ -145,14 +227,19 @@ def calibrate_salt(model, salt: str, cfg: dict, rows: pd.DataFrame, thermo: pd.D
                 ln_g, _, ln_aw, _, _ = start_model.compute(m[r:r + 1], t)
                 iap = start_model.solids.ln_iap(m[r:r + 1], ln_g, ln_aw)[0, k]
                 vals.append(iap - (start_model.solids.ln_k(t)[k] - start_model.solids.coeffs[k, 0]))
-            x0.append(float(np.mean(vals)))
+            # a solid known only by its transition points starts from its present a0
+            x0.append(float(np.mean(vals)) if vals else float(start_model.solids.coeffs[k, 0]))
     extra = [("lnk", s, p.split(":")[1]) for p in cfg["fit"] if p.startswith("lnk:") for s in cfg["solids"]]
     specs = [("lnk", s, "a0") for s in cfg["solids"]] + extra + pitzer
     x0 += [0.0] * len(extra) + [0.0] * len(pitzer)
     # linearized residuals (ln IAP - ln K) / slope first, then the solved solubilities from there
-    pen = monotonic_penalty(salt, rows, start_model)
+    pen = monotonic_penalty(salt, rows, start_model, t_span=t_span)
     if cfg.get("water_activity"):
         pen = _with_water_activity(pen, salt, cfg)
+    if transitions is not None:
+        mine = transitions[(transitions["salt"] == salt) & transitions["solid_a"].isin(cfg["solids"])
+                           & transitions["solid_b"].isin(cfg["solids"])]
+        pen = _with_transitions(pen, mine)
     first = fit_parameters(specs, rows, model=start_model, residual="ln_m", start=x0, penalty=pen)
     res = fit_parameters(specs, rows, model=start_model, residual="solubility",
                          start=[first.parameters["/".join(sp)] for sp in specs], penalty=pen)
@@ -198,13 +285,14 @@ def _with_water_activity(pen, salt: str, cfg: dict):
     return penalty
 
 
-def monotonic_penalty(salt: str, rows: pd.DataFrame, model, min_slope: float = 0.1):
+def monotonic_penalty(salt: str, rows: pd.DataFrame, model, min_slope: float = 0.1, t_span=None):
     """Penalty residuals that keep the single-salt solution physical between the fit rows.
 
     Solubility rows only sample the activity on the saturation curve; a fit may then buy a good
     match with parameters that make ln a± fall, or a_w rise, with molality at lower molality (seen
     for KNO3 above 80 °C). On a grid of temperatures every 10 °C over the fit rows and molalities
-    up to 1.05 x the saturated molality (interpolated between fit rows), each step where
+    up to 1.05 x the saturated molality (interpolated between fit rows, held at the end rows' values
+    beyond them), every 10 °C over ``t_span`` (the salt's fit and check rows; the fit rows' range by default), each step where
     d ln a± / d ln m < ``min_slope`` or d ln a_w / d ln m > 0 adds its shortfall as a residual
     (zero when the condition holds).
     """
@@ -217,7 +305,8 @@ def monotonic_penalty(salt: str, rows: pd.DataFrame, model, min_slope: float = 0
     msat = salt_molalities(model, rows)
     order = np.argsort(rows["temp_c"].to_numpy())
     t_rows, m_rows = rows["temp_c"].to_numpy(float)[order], msat[order]
-    temps = np.arange(t_rows.min(), t_rows.max() + 1e-9, 10.0)
+    lo, hi = (t_rows.min(), t_rows.max()) if t_span is None else t_span
+    temps = np.arange(lo, hi + 1e-9, 10.0)
     grids = [np.geomspace(0.01, 1.05 * np.interp(t, t_rows, m_rows), 60) for t in temps]
     ln_vec = np.log(np.where(vec > 0, vec, 1.0))
 
@@ -357,44 +446,10 @@ def calibrate_ternary(model, name: str, cfg: dict, settings: dict, ref_fit, ref_
 
 
 # ----------------------------------------------------------------------------- writing
-def _fmt(v: float) -> str:
-    if v == 0:
-        return "0"
-    return f"{v:.9g}"
-
-
-def rewrite_csv(path: Path, key_cols: tuple, updates: dict) -> int:
-    """Rewrite the rows of a CSV of the database whose key is in ``updates`` (other lines untouched).
-
-    ``updates`` maps a tuple of the key columns' values to {column: new value}. Returns the number of
-    rows changed.
-    """
-    lines = path.read_text().splitlines()
-    header = None
-    out, n = [], 0
-    for ln in lines:
-        if ln.startswith("#") or not ln.strip():
-            out.append(ln)
-            continue
-        if header is None:
-            header = next(csv.reader([ln]))
-            out.append(ln)
-            continue
-        row = next(csv.reader([ln]))
-        rec = dict(zip(header, row))
-        key = tuple(rec[c] for c in key_cols)
-        if key in updates:
-            for c, v in updates[key].items():
-                rec[c] = _fmt(v) if isinstance(v, float) else str(v)
-            buf = io.StringIO()
-            csv.writer(buf, lineterminator="").writerow([rec[c] for c in header])
-            new = buf.getvalue()
-            n += new != ln
-            out.append(new)
-        else:
-            out.append(ln)
-    path.write_text("\n".join(out) + "\n")
-    return n
+def _refs(rows: pd.DataFrame) -> str:
+    """The publications of some fit rows, e.g. "CRC98 x8, WuLiuWu2020 x1" (keys of the measurement files)."""
+    keys = rows["source"].str.split(" ").str[0].value_counts(sort=False)
+    return ", ".join(f"{k} x{n}" for k, n in sorted(keys.items()))
 
 
 def _a0_part(source: str) -> str:
@@ -412,6 +467,8 @@ def salt_molalities(model, rows):
 
 def main(dry_run: bool = False, data_dir: Path = DATA) -> dict:
     model, ref_fit, thermo, settings = load_inputs(data_dir)
+    transitions = transition_rows(data_dir)
+    spans = span_rows(data_dir)
     report = {}
     solid_updates, binary_updates = {}, {}
     problems = []
@@ -434,7 +491,9 @@ def main(dry_run: bool = False, data_dir: Path = DATA) -> dict:
                                        f"(choice: {tcfg['why']})")
     for salt, cfg in settings.items():
         rows = fit_rows_of(ref_fit, salt)
-        res, specs, props = calibrate_salt(model, salt, cfg, rows, thermo)
+        span = spans[spans["salt"] == salt]
+        t_span = (float(min(span["temp_c"].min(), rows["temp_c"].min())), float(max(span["temp_c"].max(), rows["temp_c"].max())))
+        res, specs, props = calibrate_salt(model, salt, cfg, rows, thermo, transitions, t_span)
         model = res.model
         msat = salt_molalities(model, rows)
         report[salt] = {"result": res, "rows": rows, "props": props}
@@ -445,15 +504,21 @@ def main(dry_run: bool = False, data_dir: Path = DATA) -> dict:
             print(f"   fit {r['solids']:<12s} {r['temp_c']:5.0f} °C  {r['mass_percent']:7.3f} %  "
                   f"m {msat[_]:7.3f}  residual ln m {e:+.4f}")
         cat, an = _pair(model, salt)
-        tmin = float(min(rows["temp_c"].min(), 25.0))
-        tmax = float(max(rows["temp_c"].max(), 25.0))
+        tmin = float(min(span["temp_c"].min(), 25.0))
+        tmax = float(max(span["temp_c"].max(), 25.0))
         # solids
         trans = (transitions_of(model, salt, cfg["solids"], float(rows["temp_c"].min()), float(rows["temp_c"].max()))
                  if len(cfg["solids"]) > 1 else pd.DataFrame())
         for s in cfg["solids"]:
             sr = rows[rows["solids"] == s]
-            # the data range, widened to 25 °C (where dH and dCp were measured) and to the transitions
-            lo, hi = min(float(sr["temp_c"].min()), 25.0), max(float(sr["temp_c"].max()), 25.0)
+            ss = span[span["solid"] == s]
+            tr_s = transitions[(transitions["salt"] == salt) & ((transitions["solid_a"] == s) | (transitions["solid_b"] == s))]
+            # the data range, widened to 25 °C (where dH and dCp were measured) and to the transitions; a solid
+            # known only by its transition points: from there to the end of the salt's rows
+            if len(ss):
+                lo, hi = min(float(ss["temp_c"].min()), 25.0), max(float(ss["temp_c"].max()), 25.0)
+            else:
+                lo, hi = min(float(math.floor(tr_s["temp_c"].min())), 25.0), tmax
             for tr in trans.itertuples():
                 if tr.solid_below == s:
                     hi = max(hi, float(math.ceil(tr.temp_c)))
@@ -464,8 +529,11 @@ def main(dry_run: bool = False, data_dir: Path = DATA) -> dict:
             dh, dcp = props[s]
             se = res.stderr[f"lnk/{s}/a0"]
             others = [n for n in cfg["solids"] if n != s]
-            src = (f"a0 fitted in this project to {len(sr)} solubilities {sr['temp_c'].min():g}–{sr['temp_c'].max():g} °C "
-                   f"of {REF} (role=fit; CRC Handbook, from memory)"
+            tr_txt = (" and " + ", ".join(f"the {r.solid_a}/{r.solid_b} transition at {r.temp_c:g} °C ({r.source})"
+                                          for r in tr_s.itertuples())) if len(tr_s) else ""
+            sol_txt = (f"{len(sr)} solubilities {sr['temp_c'].min():g}–{sr['temp_c'].max():g} °C of {REF} (role=fit; "
+                       f"{_refs(sr)})") if len(sr) else "no solubility row"
+            src = (f"a0 fitted in this project to {sol_txt}{tr_txt}"
                    + (f" together with {', '.join(others)}" if others else "")
                    + (f" and the {cat}-{an} Pitzer temperature coefficients" if cfg["fit"] else "")
                    + f", a0 ± {se:.2g}; a3, a4 from dH_sol {dh:.2f} kJ/mol and dCp_sol {dcp:.0f} J/(mol K) "
@@ -501,6 +569,10 @@ def main(dry_run: bool = False, data_dir: Path = DATA) -> dict:
                         if c not in mine and getattr(row, c) != 0:  # kept, e.g. a calorimetric a1
                             parts.append(f"{c} kept as in the previous data file (not refitted)")
                 elif row.parameter in [z.split(":")[0] for z in cfg.get("zero", [])]:
+                    for z in cfg.get("zero", []):
+                        p_, c_ = z.split(":")
+                        if p_ == row.parameter:
+                            upd.update({"a3": 0.0, "a4": 0.0} if c_ == "cp" else {c_: 0.0})
                     parts.append("temperature coefficients set to zero by the calibration (a previous value "
                                  "recalled with low confidence was dropped; the saturated solutions do not "
                                  "determine it)")

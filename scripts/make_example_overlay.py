@@ -5,7 +5,8 @@
 
 Data: Potter, Babcock & Brown 1977, "A new method for determining the solubility of salts in
 aqueous solutions at elevated temperatures", J. Res. U.S. Geol. Survey 5, 389-395: the solubility
-of NaCl, w = 26.218 + 0.0072 t + 0.000106 t^2 (mass-% NaCl, t in degC, 0-800 degC; from memory),
+of NaCl, w = 26.218 + 0.0072 t + 0.000106 t^2 (mass-% NaCl, t in degC, 0-800 degC; +-0.05; read in the
+abstract on the USGS publications page, as data/reference/measured_binaries.csv says),
 fitted by them to their own and earlier measurements. The table is that correlation at 0-100 degC
 every 10 degC (data/reference/halite_solubility_pbb1977.csv). The fit (phasekit.fitting.fit_ln_k,
 terms a0, a3, a4, with the embedded Pitzer parameters of NaCl) is written as the overlay
@@ -30,7 +31,7 @@ from phasekit.overlay import overlay_from_fit  # noqa: E402
 TABLE = ROOT / "data" / "reference" / "halite_solubility_pbb1977.csv"
 OVERLAY = ROOT / "data" / "overlays" / "halite_pbb1977.toml"
 SOURCE = ("Potter, Babcock & Brown 1977, J. Res. U.S. Geol. Survey 5, 389: w(NaCl) = 26.218 + 0.0072 t + "
-          "0.000106 t^2 mass-% (from memory), at 0-100 degC")
+          "0.000106 t^2 mass-% (read in the abstract, USGS publications page), at 0-100 degC")
 
 
 def table() -> pd.DataFrame:

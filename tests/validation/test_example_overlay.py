@@ -1,5 +1,5 @@
 """The example overlay fitted to a published data set: halite's ln K(T) from the NaCl solubility
-correlation of Potter, Babcock & Brown 1977, J. Res. U.S. Geol. Survey 5, 389 (from memory),
+correlation of Potter, Babcock & Brown 1977, J. Res. U.S. Geol. Survey 5, 389 (its equation read in the abstract, USGS publications page),
 made by scripts/make_example_overlay.py (data/overlays/halite_pbb1977.toml)."""
 
 import warnings
@@ -7,6 +7,7 @@ import warnings
 import pytest
 
 import phasekit as pk
+from phasekit.calibration.measurements import binary_solubility_table
 from phasekit.data_files import data_dir, read_csv
 from phasekit.fitting import fit_ln_k
 from phasekit.overlay import read_overlay
@@ -38,9 +39,9 @@ def test_overlay_reproduces_the_correlation_between_its_points(overlaid, temp_c)
 
 @pytest.mark.validation
 def test_overlay_agrees_with_the_handbook_check_rows(overlaid):
-    ref = read_csv("reference/binary_solubility.csv")
-    rows = ref[(ref["salt"] == "NaCl") & (ref["role"] == "check")]
-    for _, r in rows.iterrows():  # CRC Handbook (from memory), independent of the 1977 correlation
+    ref = binary_solubility_table()
+    rows = ref[(ref["salt"] == "NaCl") & (ref["role"] == "check") & ref["source"].str.startswith("CRC98")]
+    for _, r in rows.iterrows():  # CRC Handbook 98th ed. (read), independent of the 1977 correlation
         assert _sol("NaCl", float(r["temp_c"]), overlaid) == pytest.approx(float(r["mass_percent"]), abs=0.35)
 
 

@@ -4,7 +4,7 @@ Sources (all values from memory):
 
 - CRC = CRC Handbook of Chemistry and Physics, "Aqueous solubility of inorganic compounds"
   (mass-% of the saturated solution); only rows with role=check in
-  data/reference/binary_solubility.csv are used here, the fit rows fitted ln K and the Pitzer
+  data/reference/measured_binaries.csv (CRC98, read) are used here, the fit rows fitted ln K and the Pitzer
   temperature coefficients of NaNO3 and KNO3 (scripts/calibrate_solids.py).
 - LS65 = Linke & Seidell 1965, Solubilities of Inorganic and Metal-Organic Compounds, 4th ed.
 - NBS82 = Wagman et al. 1982, J. Phys. Chem. Ref. Data 11, Suppl. 2 (ΔfG° of the solids).
@@ -21,7 +21,7 @@ import pandas as pd
 import pytest
 
 import phasekit as pk
-from phasekit.data_files import read_csv
+from phasekit.calibration.measurements import binary_solubility_table
 
 R = 8.314462618e-3  # kJ/(mol K)
 
@@ -66,8 +66,9 @@ def test_stable_pair_is_kno3_nacl(squares, temp_c):
 @pytest.mark.validation
 @pytest.mark.parametrize("temp_c", [0.0, 25.0, 50.0, 75.0])
 def test_corners_of_the_square_match_the_binary_solubilities(squares, temp_c):
-    ref = read_csv("reference/binary_solubility.csv")
-    ref = ref[(ref["role"] == "check") & (ref["temp_c"] == temp_c)].set_index("salt")
+    ref = binary_solubility_table()
+    ref = ref[(ref["role"] == "check") & (ref["temp_c"] == temp_c) & ref["source"].str.startswith("CRC98 ")]
+    ref = ref.set_index("salt")
     sp = squares[temp_c].side_points.set_index("side")
     for salt, ion, mw in (("KNO3", "K", 101.1032), ("NaCl", "Na", 58.4428), ("KCl", "K", 74.5513)):
         if salt not in ref.index:
