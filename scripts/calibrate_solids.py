@@ -247,10 +247,19 @@ def calibrate_salt(model, salt: str, cfg: dict, rows: pd.DataFrame, thermo: pd.D
 
 
 def water_activity_rows(salt: str, data_dir: Path = DATA) -> pd.DataFrame:
-    """role=fit rows of reference/saturated_water_activity.csv for ``salt`` (except the 25 °C row, which fitted
-    the 25 °C parameters)."""
+    """role=fit water activities of the saturated solution of ``salt``: from the measurement files (kind
+    water_activity, a solid, no composition) where they hold some, else from reference/saturated_water_activity.csv
+    (recalled values; except its 25 °C row, which fitted the 25 °C parameters). Columns temp_c, water_activity,
+    source."""
+    meas = read_measurements(measurement_files(data_dir / "reference"))
+    mine = meas[(meas["kind"] == "water_activity") & (meas["role"] == "fit") & (meas["system"] == f"{salt}-H2O")
+                & meas["solid_list"].map(len).astype(bool) & ~meas["molalities"].map(bool)]
+    if len(mine):
+        return pd.DataFrame({"temp_c": mine["temp_c"].to_numpy(float), "water_activity": mine["value"].to_numpy(float),
+                             "source": (mine["reference"] + " (" + mine["file"] + ")").to_numpy()})
     ref = read_csv("reference/saturated_water_activity.csv", data_dir)
-    return ref[(ref["salt"] == salt) & (ref["role"] == "fit") & (ref["temp_c"] != 25)].reset_index(drop=True)
+    ref = ref[(ref["salt"] == salt) & (ref["role"] == "fit") & (ref["temp_c"] != 25)].reset_index(drop=True)
+    return ref[["temp_c", "water_activity", "source"]]
 
 
 def _aw_text(salt: str, cfg: dict) -> str:
@@ -259,8 +268,8 @@ def _aw_text(salt: str, cfg: dict) -> str:
         return ""
     rows = water_activity_rows(salt)
     temps = ", ".join(f"{t:g}" for t in rows["temp_c"])
-    return (f" and to the water activity of the saturated solution at {temps} °C "
-            "(data/reference/saturated_water_activity.csv role=fit, Greenspan 1977, from memory)")
+    srcs = ", ".join(sorted(set(rows["source"])))
+    return f" and to the water activity of the saturated solution at {temps} °C (role=fit; {srcs})"
 
 
 def _with_water_activity(pen, salt: str, cfg: dict):
