@@ -91,7 +91,7 @@ def check_balance_on(value) -> str:
 
 
 def prepare(source, units: str, temp_c: float, id_column=None, ignore_columns=(), density_column=None,
-            balance_on: str = "auto", missing: str = "error", max_input_mb: float = MAX_INPUT_MB, sheet=0,
+            balance_on: str = "auto", missing: str = "error", max_input_mb: float = MAX_INPUT_MB, sheet=None,
             overlays=()):
     """Check the arguments and the table; return (spec, frame with row labels, warnings).
 
@@ -110,9 +110,11 @@ def prepare(source, units: str, temp_c: float, id_column=None, ignore_columns=()
     policy = check_balance_on(balance_on)
     if missing not in ("error", "zero"):
         raise InputError("missing", missing, "'error' or 'zero'")
-    frame = read_source(source, max_input_mb, sheet)
+    read_notes: list = []
+    frame = read_source(source, max_input_mb, sheet, notes=read_notes)
     species, id_col = plan_columns(frame, id_column, ignore_columns, density_column)
     labels, notes = row_labels(frame, id_col)
+    notes = read_notes + notes
     frame = frame.copy()
     frame.index = pd.Index(labels, name="label")
     spec = BatchSpec(units=units.strip(), temp_c=t, species_columns=species, id_column=id_col,
@@ -195,7 +197,7 @@ def _run_dask(spec, chunks, scheduler, progress):
 
 def run_batch(source, units: str, temp_c: float, *, id_column=None, ignore_columns=(), density_column=None,
               balance_on: str = "auto", missing: str = "error", workers: int = 1, scheduler=None,
-              chunk_rows: int = DEFAULT_CHUNK_ROWS, max_input_mb: float = MAX_INPUT_MB, sheet=0,
+              chunk_rows: int = DEFAULT_CHUNK_ROWS, max_input_mb: float = MAX_INPUT_MB, sheet=None,
               progress=None, overlays=()) -> BatchResult:
     """Saturation states and first solid on evaporation of every analysis of a table.
 
@@ -221,6 +223,8 @@ def run_batch(source, units: str, temp_c: float, *, id_column=None, ignore_colum
         Rows per task.
     max_input_mb : float
         Refuse larger files.
+    sheet : str or int, optional
+        Sheet of an XLSX workbook (name, or number from 1); by default its one sheet of analyses.
     progress : callable, optional
         ``progress(n)`` after every chunk of ``n`` rows.
     overlays : sequence of paths

@@ -97,7 +97,7 @@ def main(argv: list[str] | None = None) -> int:
             warnings.simplefilter("always")
             c.check_output_path(args)
             if getattr(args, "plot", None):
-                c.check_plot_path(args.plot)
+                c.check_plot_path(args.plot, args)
             result = args.func(args)
             if getattr(args, "returns_code", False):
                 code = int(result)
