@@ -126,3 +126,22 @@ def text_size(field: str, value, max_bytes: int, what: str = "text") -> None:
     n = len(value.encode("utf-8", "replace")) if isinstance(value, str) else len(value)
     if n > max_bytes:
         raise InputError(field, f"{what} of {n / 1024:.0f} kB", f"at most {max_bytes / 1024:.0f} kB")
+
+
+def scheduler_client(field: str, scheduler, timeout_s: float = 10.0):
+    """A Dask client for ``scheduler``: an address (connected within ``timeout_s``) or a client.
+
+    Returns (client, owned): close the client when ``owned``. An address that does not answer is an
+    :class:`InputError` naming it.
+    """
+    if not isinstance(scheduler, str):
+        if hasattr(scheduler, "map") and hasattr(scheduler, "gather"):
+            return scheduler, False  # a Client, owned by the caller
+        raise InputError(field, scheduler, "the address of a Dask scheduler, e.g. tcp://127.0.0.1:8786")
+    from dask.distributed import Client
+
+    try:
+        return Client(scheduler, timeout=f"{timeout_s:g}s", set_as_default=False), True
+    except (OSError, TimeoutError, ValueError, TypeError) as exc:
+        raise InputError(field, scheduler, "the address of a running Dask scheduler, e.g. tcp://127.0.0.1:8786 "
+                         f"(could not connect: {exc})") from None

@@ -25,8 +25,8 @@ import pandas as pd
 
 from phasekit.batch.onset import EVAL_ROWS, first_onset, single_solid_equilibrium
 from phasekit.chemistry.brine import Brine
-from phasekit.chemistry.tables import PROBLEM_COLUMN
 from phasekit.chemistry.species import SPECIES
+from phasekit.chemistry.tables import PROBLEM_COLUMN
 from phasekit.equilibrium.saturation import states
 from phasekit.errors import ConvergenceError, InputError, PhasekitError
 
@@ -230,7 +230,9 @@ def _process_chunk(spec: BatchSpec, chunk: pd.DataFrame, model=None) -> pd.DataF
         try:
             b, note = _balance(value, spec.balance_on)
         except InputError as err:
-            status[i], error[i] = "error", f"row {chunk.index[i]!r}: balance_on: {err}"
+            status[i], error[i] = "error", (f"row {chunk.index[i]!r}: balance on {spec.balance_on}: got "
+                                            f"{err.value!r}; expected "
+                                            f"{err.expected.replace(', or pass allow_decrease=True', '')}")
             continue
         balanced[i] = note
         for s, v in b.molalities.items():

@@ -27,6 +27,7 @@ from phasekit.chemistry.brine import Brine
 from phasekit.chemistry.species import parse_species
 from phasekit.errors import InputError, RangeError
 from phasekit.thermo.water import T_MAX_C, T_MIN_C
+from phasekit.validate import scheduler_client
 
 #: rows per chunk (one task): large enough that a task's overhead (~10 ms) is small next to its
 #: work (~0.1 ms per row), small enough to spread 10,000 rows over a few workers
@@ -166,22 +167,10 @@ def _run_pool(spec, chunks, workers, progress):
     return out
 
 
-def _connect(scheduler):
-    from dask.distributed import Client
-
-    if not isinstance(scheduler, str):
-        return scheduler, False  # a Client (or an object with its map/gather), owned by the caller
-    try:
-        return Client(scheduler, timeout="10s", set_as_default=False), True
-    except (OSError, TimeoutError, ValueError) as exc:
-        raise InputError("scheduler", scheduler, "the address of a running Dask scheduler, e.g. "
-                         f"tcp://127.0.0.1:8786 (could not connect: {exc})") from None
-
-
 def _run_dask(spec, chunks, scheduler, progress):
     from dask.distributed import as_completed as dask_completed
 
-    client, owned = _connect(scheduler)
+    client, owned = scheduler_client("scheduler", scheduler)
     try:
         token = uuid.uuid4().hex[:12]
         keys = [f"phasekit-batch-{token}-{i:06d}" for i in range(len(chunks))]

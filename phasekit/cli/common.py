@@ -178,7 +178,10 @@ def _balanced(brine, policy: str, notes: list):
                              "an electrically neutral analysis with --balance-on none (or --balance-on auto, or the "
                              "ion to balance on, e.g. --balance-on Cl)")
         return brine
-    out = brine.balance(on=ion)
+    try:
+        out = brine.balance(on=ion)
+    except InputError as err:
+        raise InputError("--balance-on", policy, err.expected.replace(", or pass allow_decrease=True", "")) from None
     notes.append(out.warnings[-1])
     return out
 
