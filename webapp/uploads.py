@@ -75,13 +75,25 @@ def read_analyses(raw: bytes, filename: str) -> dict:
         table = read_table_bytes(raw, name, max_rows=MAX_ROWS, max_cols=MAX_COLUMNS,
                                  max_unpacked_bytes=MAX_UNPACKED_BYTES)
     except InputError as err:
-        raise UserInputProblem(f"upload {name!r}: {err.value if err.field == 'input' else err}; expected "
-                               f"{err.expected}") from None
+        raise UserInputProblem(f"upload {name!r}: {_reader_problem(err, name)}") from None
     df = table.frame
     out = classify(df, name)
     out["problems"] = {str(k): v for k, v in table.problems.items()}
     out["notes"] = list(table.notes)
     return out
+
+
+def _reader_problem(err: InputError, name: str) -> str:
+    """The table reader's message in the words of an upload."""
+    kind = "XLSX" if name.lower().endswith((".xlsx", ".xlsm")) else "CSV"
+    expected = str(err.expected)
+    if err.field != "input":
+        return str(err)
+    if any(w in expected for w in ("readable", "UTF-8", "binary")):
+        return f"not a readable {kind} table (expected {expected})"
+    detail = str(err.value)
+    detail = detail[len(name):].lstrip(": ") if detail.startswith(name) else detail
+    return (f"{detail}: " if detail else "") + f"expected {expected}"
 
 
 def classify(df: pd.DataFrame, filename: str) -> dict:

@@ -27,7 +27,7 @@ from phasekit.chemistry.brine import Brine
 from phasekit.chemistry.species import parse_species
 from phasekit.errors import InputError, RangeError
 from phasekit.thermo.water import T_MAX_C, T_MIN_C
-from phasekit.validate import scheduler_client
+from phasekit.validate import paths_or_documents, scheduler_client
 
 #: rows per chunk (one task): large enough that a task's overhead (~10 ms) is small next to its
 #: work (~0.1 ms per row), small enough to spread 10,000 rows over a few workers
@@ -103,7 +103,8 @@ def prepare(source, units: str, temp_c: float, id_column=None, ignore_columns=()
     """
     from phasekit.overlay import read_overlay
 
-    parsed = tuple(o if isinstance(o, dict) else read_overlay(o) for o in overlays)
+    parsed = tuple(o if isinstance(o, dict) else read_overlay(o)
+                   for o in paths_or_documents("overlays", overlays, "overlay files"))
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
         Brine.from_analysis({"Na": 0.0}, units=units)  # the library's check (and message) of the units

@@ -108,6 +108,8 @@ def test_a_sensible_overlay_still_applies(tmp_path):
      "concentration_factor"),
     (lambda m: pk.isotherm(["NaCl", "KCl"], temp_c=25, exclude="halite"), "not a string"),
     (lambda m: pk.load_model(overlays="works.toml"), "not a single string"),
+    (lambda m: __import__("phasekit.batch", fromlist=["run_batch"]).run_batch(
+        pd.DataFrame({"Na": ["1"], "Cl": ["1"]}), "mol/kg", 25, overlays="works.toml"), "not a single string"),
 ])
 def test_library_refuses_booleans_strings_and_absurd_values(call, field):
     with pytest.raises(InputError) as err:
