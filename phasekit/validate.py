@@ -20,6 +20,10 @@ import numpy as np
 
 from phasekit.errors import InputError, RangeError
 
+#: largest molality accepted from the user, mol/kg water: fifty times the model's validity limit of
+#: ionic strength, and more than any salt dissolves (a larger value is a slip of units or digits; it
+#: would overflow the activity sums)
+MAX_MOLALITY = 1000.0
 #: deepest nesting accepted in user documents (session files, JSON from the browser)
 MAX_NESTING = 32
 

@@ -121,7 +121,7 @@ def layout(inputs: dict) -> html.Div:
 # ----------------------------------------------------------------------------- reading the fields
 def parse_amount(text, key: str) -> float:
     """A salt amount typed by the user (mol per kg water; blank = 0)."""
-    expected = f"a number from 0 to {MAX_FEED_MOLALITY:g} in mol per kg water (blank = 0)"
+    expected = f"a number >= 0 and at most {MAX_FEED_MOLALITY:g} in mol per kg water (blank = 0)"
     s = "" if text is None else str(text).strip().replace(",", ".")
     if not s:
         return 0.0

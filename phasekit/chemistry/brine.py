@@ -40,6 +40,7 @@ from phasekit.chemistry.density import estimate_density
 from phasekit.chemistry.salts import parse_salt, salt_formula_mass
 from phasekit.chemistry.species import M_WATER, SPECIES, parse_species
 from phasekit.errors import AnalysisWarning, ConvergenceError, InputError, PhasekitError, RangeError, ValidityWarning
+from phasekit.validate import MAX_MOLALITY
 
 #: |charge balance| (%) above which an analysis carries a warning (see the module docstring)
 CHARGE_BALANCE_WARN_PERCENT = 5.0
@@ -270,6 +271,10 @@ class Brine:
             else:
                 m, used_density, dwarn = cls._from_litre_model(per_litre, t, u, factor)
                 notes.extend((w, ValidityWarning) for w in dwarn)
+        for s, x in m.items():
+            if not x <= MAX_MOLALITY:
+                raise InputError(f"values[{s!r}]", vals[s], f"{what} that gives at most {MAX_MOLALITY:g} mol/kg water "
+                                 f"(it gives {x:.3g} mol/kg; check the units)")
         brine = cls._make(m)
         brine.conversion_density = used_density
         brine._check_analysis(balance_on, notes)

@@ -32,11 +32,7 @@ from phasekit.thermo import tempfn
 from phasekit.thermo.etheta import jtable
 from phasekit.thermo.kernel import PARALLEL_MIN_ROWS, pitzer_rows_parallel, pitzer_rows_serial
 from phasekit.thermo.water import T_MAX_C, T_MIN_C, aphi
-
-#: largest molality accepted from the user, mol/kg water: fifty times the model's validity limit of
-#: ionic strength, and more than any salt dissolves (a larger value is a slip of units or digits; it
-#: would overflow the activity sums)
-MAX_MOLALITY = 1000.0
+from phasekit.validate import MAX_MOLALITY
 
 
 @dataclass
