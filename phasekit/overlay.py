@@ -58,12 +58,12 @@ PARAM_KEYS = ("kind", "species", *COEFFS, "t_min_c", "t_max_c", "source", "stder
 #: validity temperatures an overlay may state, °C (liquid brines at ordinary pressure, with margin)
 T_BOUNDS_C = (-60.0, 250.0)
 #: largest magnitude of each coefficient of the temperature function (the embedded database stays
-#: well inside: its largest are a1 0.64, a2 5e-5, a3 9.5e5 and a4 3.2e3, all of beta2 of 2:2 salts)
+#: well inside: its largest are a1 0.64, a3 9.5e5 and a4 3.2e3, of beta2 of 2:2 salts, and a2 5e-5 of a psi)
 COEFF_BOUNDS = {"a0": 1e3, "a1": 10.0, "a2": 1.0, "a3": 1e7, "a4": 1e5}
-#: physically sensible values of each kind over its validity range, chosen with a wide margin around
-#: the magnitudes of published Pitzer parameters (beta0 below 1, beta1 below 4 and beta2 near -55
-#: for 2:2 salts, C-phi, theta and psi below 0.1, in the embedded database) and of ln K of salts
-#: (about -110 to +40): a value outside is a slip of units or digits, not a fit
+#: physically sensible values of each kind over its validity range: bounds of our own choice with a
+#: wide margin around the magnitudes in the embedded database (at 25 °C: |beta0| below 0.4, |beta1|
+#: below 3.4, |beta2| up to 54 for 2:2 salts, |C-phi|, |theta| and |psi| below 0.1, |ln K| of the solids
+#: below 40); a value outside is a slip of units or digits, not a fit
 VALUE_BOUNDS = {"beta0": (-5.0, 5.0), "beta1": (-30.0, 30.0), "beta2": (-500.0, 500.0), "cphi": (-1.0, 1.0),
                 "theta": (-2.0, 2.0), "psi": (-1.0, 1.0), "solid": (-150.0, 80.0)}
 
@@ -128,7 +128,7 @@ def _check_stoichiometry(text, where: str) -> None:
         raise InputError(f"{where}.stoichiometry", text, f"{what} (the charges add up to {charge:+g})")
 
 
-def _check_entry(entry, where: str, allowed, kind_bounds: str | None) -> None:
+def _check_entry(entry, where: str, allowed) -> None:
     if not isinstance(entry, dict):
         raise InputError(where, entry, "a table of keys and values")
     _unknown_keys(entry, allowed, where)
@@ -186,12 +186,10 @@ def check_overlay(data, label: str = "overlay") -> dict:
         count += len(entries)
         for i, e in enumerate(entries):
             where = f"{label} {table}[{i}]"
-            _check_entry(e, where, allowed, table)
+            _check_entry(e, where, allowed)
             if table == "solid":
                 _text_value(e, "name", where, True, "a solid name")
-                for key in ("formula",):
-                    if key in e:
-                        _text_value(e, key, where, False, "a formula, e.g. 'K2Mg(SO4)2(H2O)4'")
+                _text_value(e, "formula", where, False, "a formula, e.g. 'K2Mg(SO4)2(H2O)4'")
                 if "stoichiometry" in e:
                     _check_stoichiometry(e["stoichiometry"], where)
             else:
