@@ -140,7 +140,7 @@ def test_leach_with_a_fraction_that_is_not_a_number(capsys):
 def test_onset_with_a_scheduler_that_does_not_answer(capsys):
     code, _, err = run(capsys, "onset", "--brine", "Na=10780,Cl=19350", "--units", "mg/kg", "--sd",
                        "solid:sylvite:a0=0.1", "--samples", "4", "--scheduler", "tcp://127.0.0.1:9")
-    assert code == 2 and "tcp://127.0.0.1:9" in err and "running Dask scheduler" in err
+    assert code == 2 and "--scheduler: got 'tcp://127.0.0.1:9'" in err and "running Dask scheduler" in err
 
 
 def test_onset_names_an_unknown_ion_of_a_parameter(capsys):
