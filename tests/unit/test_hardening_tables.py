@@ -174,3 +174,13 @@ def test_read_table_refuses_a_file_above_its_size_limit_before_reading(tmp_path)
     src = _write(tmp_path / "w.csv", [HEAD, *ROWS * 2000])
     with pytest.raises(InputError, match="at most 0.1 MB"):
         pk.Brine.read_table(src, units="mg/kg", max_mb=0.1)
+
+
+def test_cli_input_reads_a_semicolon_file_and_names_a_ragged_row(tmp_path, capsys):
+    src = tmp_path / "w.csv"
+    src.write_text("sample;Na;Cl\nA;10780,5;19350\nB;1;2;3\n")
+    code, out, err = run(capsys, "saturation", "--input", str(src), "--row", "A", "--units", "mg/kg",
+                         "--format", "json")
+    assert code == 0, err
+    code, _, err = run(capsys, "saturation", "--input", str(src), "--row", "B", "--units", "mg/kg")
+    assert code == 2 and "'B'" in err and "4 cells" in err
