@@ -68,13 +68,6 @@ def whole_number(field: str, value, lo: int = 1, hi: int | None = None) -> int:
     return int(value)
 
 
-def flag(field: str, value) -> bool:
-    """A boolean (True/False), nothing else."""
-    if not isinstance(value, bool | np.bool_):
-        raise InputError(field, value, "True or False")
-    return bool(value)
-
-
 def names(field: str, value, what: str = "names", allow_none: bool = True) -> list[str]:
     """A list of names from a list, tuple or set of strings; a lone string is refused.
 
@@ -123,13 +116,6 @@ def nesting_depth(obj, limit: int = MAX_NESTING) -> int:
             return depth
         stack.extend((c, d + 1) for c in children)
     return depth
-
-
-def text_size(field: str, value, max_bytes: int, what: str = "text") -> None:
-    """Refuse text (or bytes) longer than ``max_bytes`` before it is parsed."""
-    n = len(value.encode("utf-8", "replace")) if isinstance(value, str) else len(value)
-    if n > max_bytes:
-        raise InputError(field, f"{what} of {n / 1024:.0f} kB", f"at most {max_bytes / 1024:.0f} kB")
 
 
 def scheduler_client(field: str, scheduler, timeout_s: float = 10.0):

@@ -27,7 +27,7 @@ from phasekit.chemistry.brine import Brine
 from phasekit.chemistry.species import parse_species
 from phasekit.errors import InputError, RangeError
 from phasekit.thermo.water import T_MAX_C, T_MIN_C
-from phasekit.validate import paths_or_documents, scheduler_client
+from phasekit.validate import paths_or_documents, scheduler_client, whole_number
 
 #: rows per chunk (one task): large enough that a task's overhead (~10 ms) is small next to its
 #: work (~0.1 ms per row), small enough to spread 10,000 rows over a few workers
@@ -73,12 +73,6 @@ def _temp(temp_c) -> float:
     if not math.isfinite(t) or not T_MIN_C <= t <= T_MAX_C:
         raise RangeError("temp_c", temp_c, f"a temperature from {T_MIN_C:g} to {T_MAX_C:g} °C")
     return t
-
-
-def _count(value, field_name: str) -> int:
-    if isinstance(value, bool) or not isinstance(value, int | np.integer) or value < 1:
-        raise InputError(field_name, value, "a whole number >= 1")
-    return int(value)
 
 
 def check_balance_on(value) -> str:
@@ -233,8 +227,8 @@ def run_batch(source, units: str, temp_c: float, *, id_column=None, ignore_colum
         computed.
     """
     t0 = time.perf_counter()
-    workers = _count(workers, "workers")
-    chunk_rows = _count(chunk_rows, "chunk_rows")
+    workers = whole_number("workers", workers)
+    chunk_rows = whole_number("chunk_rows", chunk_rows)
     spec, frame, notes = prepare(source, units, temp_c, id_column, ignore_columns, density_column, balance_on,
                                  missing, max_input_mb, sheet, overlays)
     chunks = chunks_of(frame, chunk_rows)

@@ -1,7 +1,7 @@
 """Input tables of a batch run: reading a CSV or XLSX file, and checking its columns.
 
-Cells are read as text (CSV and XLSX, by :mod:`phasekit.chemistry.tables`) so that every worker parses each value the same way, with Python's
-correctly rounded float(). A file larger than the size limit (:data:`MAX_INPUT_MB`, which the
+Cells are read as text (CSV and XLSX, by :mod:`phasekit.chemistry.tables`) so that every worker
+parses each value the same way, with Python's correctly rounded float(). A file larger than the size limit (:data:`MAX_INPUT_MB`, which the
 caller may raise) is refused before it is read: at about 60 bytes per analysis, 64 MB is a million
 analyses, an hour of work on two cores; split such a file, or raise the limit knowingly.
 """
