@@ -203,6 +203,12 @@ def _select(db, spec, table=None):
                          "('theta', i, j), ('psi', i, j, k), (beta0|beta1|beta2|cphi, cation, anion) or "
                          "('lnk', solid), optionally followed by a coefficient a0..a4")
     t = getattr(db, name).copy() if table is None else table
+    if kind != "lnk":
+        for x in spec[1:]:
+            try:
+                db.parse_species(x)
+            except InputError as err:
+                raise InputError(f"parameter {'/'.join(map(str, spec))}", x, err.expected) from None
     if kind in ("theta", "psi"):
         if len(spec) != (3 if kind == "theta" else 4):
             raise InputError("parameter", spec, "('theta', i, j) or ('psi', i, j, k)")
@@ -318,6 +324,13 @@ def fit_parameters(parameters: list, data: pd.DataFrame, model=None, residual: s
         raise InputError("parameters", parameters, "at least one parameter")
     if residual not in ("ln_k", "ln_m", "solubility"):
         raise InputError("residual", residual, "'ln_k', 'ln_m' or 'solubility'")
+    if isinstance(parameters, str):
+        raise InputError("parameters", parameters, "a list of parameter specs such as [('theta', 'Na', 'K')], not "
+                                                   "a string")
+    for spec in parameters:  # each spec's kind and species, before the data are looked at
+        if isinstance(spec, str) or not isinstance(spec, tuple | list):
+            raise InputError("parameters", spec, "a list of specs such as ('theta', 'Na', 'K')")
+        _select(model.db, _split(spec)[0])
     if not isinstance(data, pd.DataFrame) or "solids" not in data.columns:
         raise InputError("data", list(data.columns) if isinstance(data, pd.DataFrame) else type(data).__name__,
                          "a table with a 'solids' column naming the saturating solid(s)")

@@ -61,5 +61,12 @@ def default_model() -> Model:
 
 
 def load_model(overlays=()) -> Model:
-    """The embedded database with overlay files applied (the embedded model if none)."""
+    """The embedded database with overlay files applied (the embedded model if none).
+
+    ``overlays`` is a list of paths (or of overlays read by :func:`phasekit.overlay.read_overlay`);
+    a single path is refused, not read one character at a time.
+    """
+    from phasekit.validate import paths_or_documents
+
+    overlays = paths_or_documents("overlays", overlays, "overlay files")
     return default_model().with_overlays(*overlays) if overlays else default_model()

@@ -126,28 +126,32 @@ def monte_carlo(predict, parameters, n: int = 200, seed: int = 0, model=None, sc
     if not isinstance(n, int) or n < 2:
         raise InputError("n", n, "an integer number of samples >= 2")
     specs, cov = _specs_and_cov(parameters)
+    # a spec naming an unknown solid, ion or parameter fails here, with its own message, rather than
+    # in every sample
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", ValidityWarning)
+        perturbed_model(model, specs, np.zeros(len(specs)))
+        nominal = float(predict(model))
     rng = np.random.default_rng(seed)
     deltas = rng.multivariate_normal(np.zeros(len(specs)), cov, size=n, method="eigh")
     chunks = [(model, specs, deltas[i:i + chunk], predict) for i in range(0, n, chunk)]
     if scheduler is None:
         values = [v for c in chunks for v in _run_chunk(c)]
     else:
-        from dask.distributed import Client
+        from phasekit.validate import scheduler_client
 
-        client = scheduler if isinstance(scheduler, Client) else Client(scheduler)
+        client, owned = scheduler_client("scheduler", scheduler)
         try:
             futures = client.map(_run_chunk, chunks, pure=False)
             values = [v for part in client.gather(futures) for v in part]
         finally:
-            if not isinstance(scheduler, Client):
+            if owned:
                 client.close()
     values = np.array(values)
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore", ValidityWarning)
-        nominal = float(predict(model))
     ok = values[np.isfinite(values)]
     if len(ok) < 2:
-        raise InputError("predict", "failed for almost every sample", "a prediction defined near the parameters")
+        raise InputError("prediction", f"defined for {len(ok)} of {n} samples",
+                         "a prediction defined near the parameters (smaller standard deviations?)")
     samples = pd.DataFrame(deltas, columns=["/".join(map(str, s)) for s in specs])
     samples["prediction"] = values
     return UncertaintyResult(samples, float(ok.mean()), float(ok.std(ddof=1)),

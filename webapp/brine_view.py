@@ -269,6 +269,8 @@ def take_upload(checked):
     note = f"{name}: {len(tab['rows'])} analyses read"
     if tab["ignored"]:
         note += f" (columns shown but not used: {', '.join(tab['ignored'])})"
+    if tab.get("notes"):
+        note += f" ({'; '.join(tab['notes'])})"
     return tab, messages.note(note + ". Choose one below.")
 
 
@@ -278,7 +280,12 @@ def pick_options(analyses, units):
         return [], None, None
     labels = uploads.sample_labels(analyses)
     options, problems = [], []
+    marked = analyses.get("problems") if isinstance(analyses.get("problems"), dict) else {}
     for i, label in enumerate(labels):
+        if marked.get(str(i)):
+            options.append({"label": f"{label} — needs attention", "value": i})
+            problems.append(f"{label}: {marked[str(i)]}")
+            continue
         s = uploads.sample(analyses, i)
         try:
             raw, _ = build_brine(s["rows"], units, s["density"], None)

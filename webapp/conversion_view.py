@@ -50,6 +50,12 @@ CAUTION = ("Caution: the hot stage handles brine near its boiling point, which s
            "cautions at the foot of the page).")
 
 
+#: largest amount of a salt in the feed, mol per kg water: above what any of these salts dissolves even
+#: at 100 °C (KNO3, the most soluble, about 24 mol/kg: 246 g per 100 g water, CRC Handbook of Chemistry
+#: and Physics, aqueous solubility table, from memory); a larger value is a slip of units or digits
+MAX_FEED_MOLALITY = 50.0
+
+
 def label(key: str) -> str:
     """The label of a field, as the messages name it."""
     return FIELDS[key][1]
@@ -115,7 +121,7 @@ def layout(inputs: dict) -> html.Div:
 # ----------------------------------------------------------------------------- reading the fields
 def parse_amount(text, key: str) -> float:
     """A salt amount typed by the user (mol per kg water; blank = 0)."""
-    expected = "a number >= 0 in mol per kg water (blank = 0)"
+    expected = f"a number >= 0 and at most {MAX_FEED_MOLALITY:g} in mol per kg water (blank = 0)"
     s = "" if text is None else str(text).strip().replace(",", ".")
     if not s:
         return 0.0
@@ -123,7 +129,7 @@ def parse_amount(text, key: str) -> float:
         x = float(s)
     except ValueError:
         raise InputError(label(key), text, expected) from None
-    if not math.isfinite(x) or x < 0:
+    if not math.isfinite(x) or x < 0 or x > MAX_FEED_MOLALITY:
         raise InputError(label(key), text, expected)
     return x
 

@@ -155,10 +155,19 @@ def _parse(text: str, filename: str) -> dict:
 # ----------------------------------------------------------------------------- models
 def key_of(db) -> tuple:
     """A short hashable key of a choice, for caches of results (the uploaded text is hashed)."""
+    if db is not None and not isinstance(db, dict):
+        raise UserInputProblem("database: the choice sent by the browser is not readable; choose a database again")
     choice = (db or {}).get("choice") or EMBEDDED
+    if not isinstance(choice, str) or len(choice) > 300:
+        raise UserInputProblem("database: the choice sent by the browser is not readable; choose a database again")
     if choice == UPLOAD:
-        text = ((db or {}).get("upload") or {}).get("text") or ""
-        return (UPLOAD, hashlib.sha256(text.encode("utf-8")).hexdigest()[:20])
+        up = (db or {}).get("upload") or {}
+        text = up.get("text") if isinstance(up, dict) else None
+        text = text if isinstance(text, str) else ""
+        if len(text) > MAX_OVERLAY_BYTES:  # characters: at least as many bytes
+            raise UserInputProblem(f"database: the uploaded overlay is {len(text) / 1024:.0f} kB, larger than the "
+                                   f"limit of {MAX_OVERLAY_BYTES // 1024} kB for an overlay; upload a smaller one")
+        return (UPLOAD, hashlib.sha256(text.encode("utf-8", "replace")).hexdigest()[:20])
     return (choice,)
 
 
@@ -173,7 +182,7 @@ def model_for(db):
     key = key_of(db)
     if key[0] == UPLOAD and key not in _UPLOADED:
         up = (db or {}).get("upload") or {}
-        if not up.get("text"):
+        if not isinstance(up, dict) or not isinstance(up.get("text"), str) or not up.get("text"):
             raise UserInputProblem("database: no overlay uploaded; upload one or choose another database")
         _UPLOADED[key] = _parse(up["text"], up.get("filename") or "overlay.toml")
         while len(_UPLOADED) > _UPLOADED_MAX:
@@ -219,6 +228,9 @@ def valid_choice(db) -> tuple[dict, str | None]:
     if choice == UPLOAD:
         up = db.get("upload")
         if isinstance(up, dict) and isinstance(up.get("text"), str):
+            if len(up["text"]) > MAX_OVERLAY_BYTES:
+                return ({"choice": EMBEDDED, "upload": None},
+                        f"the saved overlay is larger than {MAX_OVERLAY_BYTES // 1024} kB; the embedded database is used")
             try:
                 checked = read_upload(up["text"].encode("utf-8"), up.get("filename") or "overlay.toml")
             except UserInputProblem as exc:

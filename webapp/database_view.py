@@ -4,7 +4,7 @@ start, an uploaded overlay) and the upload of an overlay file (TOML). The choice
 
 from __future__ import annotations
 
-from dash import ClientsideFunction, Input, Output, State, dcc, html, no_update
+from dash import ClientsideFunction, Input, Output, State, ctx, dcc, html, no_update
 from dash.exceptions import PreventUpdate
 
 from webapp import database, messages, uploads
@@ -65,7 +65,12 @@ def choose(choice, upload):
         database.model_for(db)
     except Exception as exc:
         return no_update, _refused(messages.describe(exc, "the database"))
-    return db, None
+    # a new upload comes with its own note (take_overlay): keep it; any other choice clears old messages
+    try:
+        uploaded = "db-upload.data" in ctx.triggered_prop_ids
+    except Exception:  # called outside a request (tests of the function itself)
+        uploaded = False
+    return db, (no_update if uploaded else None)
 
 
 def register(app):

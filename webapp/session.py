@@ -13,6 +13,7 @@ import json
 from webapp import database
 from webapp.demo import demo_session
 from webapp.systems import SYSTEMS
+from webapp.uploads import MAX_COLUMNS, MAX_ROWS
 
 FORMAT = "phasekit-session"
 VERSION = 1
@@ -80,6 +81,9 @@ def normalise(data) -> tuple[dict, list[str]]:
         }
     a = data.get("analyses")
     out["analyses"] = a if _valid_table(a) else None
+    if a is not None and out["analyses"] is None:
+        notes.append(f"the table of analyses in the file is not a table of at most {MAX_ROWS} rows and "
+                     f"{MAX_COLUMNS} columns of text: it is not loaded")
     p = data.get("path") if isinstance(data.get("path"), dict) else {}
     out["path"] = {
         "process": _choice(p.get("process"), ("evaporation", "cooling"), d["path"]["process"]),
@@ -114,6 +118,9 @@ def _valid_table(a) -> bool:
         return False
     try:
         ok = (isinstance(a["columns"], list) and isinstance(a["rows"], list) and isinstance(a["species"], dict)
+              and len(a["rows"]) <= MAX_ROWS and len(a["columns"]) <= MAX_COLUMNS
+              and all(isinstance(c, str) for c in a["columns"])
+              and all(isinstance(v, str) and len(v) <= 200 for r in a["rows"] if isinstance(r, list) for v in r)
               and all(isinstance(r, list) and len(r) == len(a["columns"]) for r in a["rows"])
               and all(c in a["columns"] for c in a["species"]))
     except (KeyError, TypeError):

@@ -9,20 +9,22 @@ from __future__ import annotations
 
 import base64
 import binascii
-import io
 import json
-import zipfile
 
 import pandas as pd
 
 from phasekit.chemistry.species import SPECIES, parse_species
+from phasekit.chemistry.tables import read_table_bytes
 from phasekit.errors import InputError
+from phasekit.validate import MAX_NESTING, nesting_depth
 from webapp.messages import UserInputProblem
 
 #: largest file accepted (2 MB); the same number is used by the check in assets/clientside.js
 MAX_UPLOAD_BYTES = 2 * 1024 * 1024
 MAX_ROWS = 500
 MAX_COLUMNS = 40
+#: largest unpacked size of an uploaded workbook (an XLSX of 2 MB can unpack to gigabytes)
+MAX_UNPACKED_BYTES = 20 * 1024 * 1024
 ID_NAMES = ("sample", "sample id", "sample_id", "id", "name", "analysis")
 
 
@@ -67,31 +69,31 @@ def read_analyses(raw: bytes, filename: str) -> dict:
         columns, or a column of numbers whose name is not a species of the database.
     """
     name = (filename or "").strip()
-    suffix = name.lower().rsplit(".", 1)[-1] if "." in name else ""
+    if not raw:
+        raise UserInputProblem(f"upload {name!r}: the file is empty; expected a header row and rows of analyses")
     try:
-        if suffix in ("csv", "txt"):
-            text = raw.decode("utf-8-sig")
-            df = pd.read_csv(io.StringIO(text), dtype=str, keep_default_na=False, sep=None, engine="python",
-                             skipinitialspace=True)
-        elif suffix in ("xlsx", "xlsm"):
-            df = pd.read_excel(io.BytesIO(raw), dtype=str, engine="openpyxl").fillna("")
-        else:
-            raise UserInputProblem(f"upload {name!r}: expected a .csv or .xlsx file")
-    except UserInputProblem:
-        raise
-    except (UnicodeDecodeError, ValueError, pd.errors.ParserError, pd.errors.EmptyDataError, zipfile.BadZipFile,
-            KeyError, OSError) as exc:
-        raise UserInputProblem(f"upload {name!r}: not a readable {suffix.upper()} table ({type(exc).__name__})") from None
-    df.columns = [str(c).strip() for c in df.columns]
-    if len(df) == 0:
-        raise UserInputProblem(f"upload {name!r}: the table has no rows of analyses")
-    if len(df) > MAX_ROWS or len(df.columns) > MAX_COLUMNS:
-        raise UserInputProblem(f"upload {name!r}: {len(df)} rows × {len(df.columns)} columns; at most {MAX_ROWS} "
-                               f"rows and {MAX_COLUMNS} columns")
-    if len(set(df.columns)) != len(df.columns):
-        dup = next(c for c in df.columns if list(df.columns).count(c) > 1)
-        raise UserInputProblem(f"upload {name!r}: column {dup!r} appears twice")
-    return classify(df, name)
+        table = read_table_bytes(raw, name, max_rows=MAX_ROWS, max_cols=MAX_COLUMNS,
+                                 max_unpacked_bytes=MAX_UNPACKED_BYTES)
+    except InputError as err:
+        raise UserInputProblem(f"upload {name!r}: {_reader_problem(err, name)}") from None
+    df = table.frame
+    out = classify(df, name)
+    out["problems"] = {str(k): v for k, v in table.problems.items()}
+    out["notes"] = list(table.notes)
+    return out
+
+
+def _reader_problem(err: InputError, name: str) -> str:
+    """The table reader's message in the words of an upload."""
+    kind = "XLSX" if name.lower().endswith((".xlsx", ".xlsm")) else "CSV"
+    expected = str(err.expected)
+    if err.field != "input":
+        return str(err)
+    if any(w in expected for w in ("readable", "UTF-8", "binary")):
+        return f"not a readable {kind} table (expected {expected})"
+    detail = str(err.value)
+    detail = detail[len(name):].lstrip(": ") if detail.startswith(name) else detail
+    return (f"{detail}: " if detail else "") + f"expected {expected}"
 
 
 def classify(df: pd.DataFrame, filename: str) -> dict:
@@ -206,6 +208,11 @@ def read_session(contents: str, filename: str) -> dict:
         data = json.loads(raw.decode("utf-8-sig"))
     except (UnicodeDecodeError, json.JSONDecodeError) as exc:
         raise UserInputProblem(f"session file {filename!r}: not valid JSON ({exc.__class__.__name__})") from None
+    except RecursionError:
+        data = None
+    if data is None or nesting_depth(data) > MAX_NESTING:
+        raise UserInputProblem(f"session file {filename!r}: nested more than {MAX_NESTING} levels deep; not a "
+                               "phasekit session (saved with 'Save session')")
     if not isinstance(data, dict) or data.get("format") != "phasekit-session":
         raise UserInputProblem(f"session file {filename!r}: not a phasekit session (saved with 'Save session')")
     return data

@@ -26,6 +26,7 @@ import pandas as pd
 from phasekit.batch.onset import EVAL_ROWS, first_onset, single_solid_equilibrium
 from phasekit.chemistry.brine import Brine
 from phasekit.chemistry.species import SPECIES
+from phasekit.chemistry.tables import PROBLEM_COLUMN
 from phasekit.equilibrium.saturation import states
 from phasekit.errors import ConvergenceError, InputError, PhasekitError
 
@@ -155,10 +156,14 @@ def read_rows(spec: BatchSpec, chunk: pd.DataFrame) -> list:
     """
     records = chunk[list(spec.species_columns)].to_dict("records")
     dens = chunk[spec.density_column].tolist() if spec.density_column else [None] * len(records)
+    problems = chunk[PROBLEM_COLUMN].tolist() if PROBLEM_COLUMN in chunk.columns else [""] * len(records)
     out: list = []
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
-        for label, values, d in zip(chunk.index, records, dens):
+        for label, values, d, problem in zip(chunk.index, records, dens, problems):
+            if isinstance(problem, str) and problem:
+                out.append(PhasekitError(f"row {label!r}: {problem}"))
+                continue
             try:
                 out.append(Brine.from_analysis(values, units=spec.units, density=None if _blank(d) else d,
                                                temp_c=spec.temp_c, missing=spec.missing))
@@ -225,7 +230,9 @@ def _process_chunk(spec: BatchSpec, chunk: pd.DataFrame, model=None) -> pd.DataF
         try:
             b, note = _balance(value, spec.balance_on)
         except InputError as err:
-            status[i], error[i] = "error", f"row {chunk.index[i]!r}: balance_on: {err}"
+            status[i], error[i] = "error", (f"row {chunk.index[i]!r}: balance on {spec.balance_on}: got "
+                                            f"{err.value!r}; expected "
+                                            f"{err.expected.replace(', or pass allow_decrease=True', '')}")
             continue
         balanced[i] = note
         for s, v in b.molalities.items():

@@ -27,6 +27,7 @@ from phasekit.chemistry.brine import Brine
 from phasekit.chemistry.species import parse_species
 from phasekit.errors import InputError, RangeError
 from phasekit.thermo.water import T_MAX_C, T_MIN_C
+from phasekit.validate import paths_or_documents, scheduler_client, whole_number
 
 #: rows per chunk (one task): large enough that a task's overhead (~10 ms) is small next to its
 #: work (~0.1 ms per row), small enough to spread 10,000 rows over a few workers
@@ -74,12 +75,6 @@ def _temp(temp_c) -> float:
     return t
 
 
-def _count(value, field_name: str) -> int:
-    if isinstance(value, bool) or not isinstance(value, int | np.integer) or value < 1:
-        raise InputError(field_name, value, "a whole number >= 1")
-    return int(value)
-
-
 def check_balance_on(value) -> str:
     """A balancing policy ('auto', 'none') or the canonical name of an ion."""
     if isinstance(value, str) and value.strip().lower() in BALANCE_POLICIES:
@@ -91,7 +86,7 @@ def check_balance_on(value) -> str:
 
 
 def prepare(source, units: str, temp_c: float, id_column=None, ignore_columns=(), density_column=None,
-            balance_on: str = "auto", missing: str = "error", max_input_mb: float = MAX_INPUT_MB, sheet=0,
+            balance_on: str = "auto", missing: str = "error", max_input_mb: float = MAX_INPUT_MB, sheet=None,
             overlays=()):
     """Check the arguments and the table; return (spec, frame with row labels, warnings).
 
@@ -102,7 +97,8 @@ def prepare(source, units: str, temp_c: float, id_column=None, ignore_columns=()
     """
     from phasekit.overlay import read_overlay
 
-    parsed = tuple(o if isinstance(o, dict) else read_overlay(o) for o in overlays)
+    parsed = tuple(o if isinstance(o, dict) else read_overlay(o)
+                   for o in paths_or_documents("overlays", overlays, "overlay files"))
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
         Brine.from_analysis({"Na": 0.0}, units=units)  # the library's check (and message) of the units
@@ -110,9 +106,11 @@ def prepare(source, units: str, temp_c: float, id_column=None, ignore_columns=()
     policy = check_balance_on(balance_on)
     if missing not in ("error", "zero"):
         raise InputError("missing", missing, "'error' or 'zero'")
-    frame = read_source(source, max_input_mb, sheet)
+    read_notes: list = []
+    frame = read_source(source, max_input_mb, sheet, notes=read_notes)
     species, id_col = plan_columns(frame, id_column, ignore_columns, density_column)
     labels, notes = row_labels(frame, id_col)
+    notes = read_notes + notes
     frame = frame.copy()
     frame.index = pd.Index(labels, name="label")
     spec = BatchSpec(units=units.strip(), temp_c=t, species_columns=species, id_column=id_col,
@@ -164,22 +162,10 @@ def _run_pool(spec, chunks, workers, progress):
     return out
 
 
-def _connect(scheduler):
-    from dask.distributed import Client
-
-    if not isinstance(scheduler, str):
-        return scheduler, False  # a Client (or an object with its map/gather), owned by the caller
-    try:
-        return Client(scheduler, timeout="10s", set_as_default=False), True
-    except (OSError, TimeoutError, ValueError) as exc:
-        raise InputError("scheduler", scheduler, "the address of a running Dask scheduler, e.g. "
-                         f"tcp://127.0.0.1:8786 (could not connect: {exc})") from None
-
-
 def _run_dask(spec, chunks, scheduler, progress):
     from dask.distributed import as_completed as dask_completed
 
-    client, owned = _connect(scheduler)
+    client, owned = scheduler_client("scheduler", scheduler)
     try:
         token = uuid.uuid4().hex[:12]
         keys = [f"phasekit-batch-{token}-{i:06d}" for i in range(len(chunks))]
@@ -195,7 +181,7 @@ def _run_dask(spec, chunks, scheduler, progress):
 
 def run_batch(source, units: str, temp_c: float, *, id_column=None, ignore_columns=(), density_column=None,
               balance_on: str = "auto", missing: str = "error", workers: int = 1, scheduler=None,
-              chunk_rows: int = DEFAULT_CHUNK_ROWS, max_input_mb: float = MAX_INPUT_MB, sheet=0,
+              chunk_rows: int = DEFAULT_CHUNK_ROWS, max_input_mb: float = MAX_INPUT_MB, sheet=None,
               progress=None, overlays=()) -> BatchResult:
     """Saturation states and first solid on evaporation of every analysis of a table.
 
@@ -221,6 +207,8 @@ def run_batch(source, units: str, temp_c: float, *, id_column=None, ignore_colum
         Rows per task.
     max_input_mb : float
         Refuse larger files.
+    sheet : str or int, optional
+        Sheet of an XLSX workbook (name, or number from 1); by default its one sheet of analyses.
     progress : callable, optional
         ``progress(n)`` after every chunk of ``n`` rows.
     overlays : sequence of paths
@@ -239,8 +227,8 @@ def run_batch(source, units: str, temp_c: float, *, id_column=None, ignore_colum
         computed.
     """
     t0 = time.perf_counter()
-    workers = _count(workers, "workers")
-    chunk_rows = _count(chunk_rows, "chunk_rows")
+    workers = whole_number("workers", workers)
+    chunk_rows = whole_number("chunk_rows", chunk_rows)
     spec, frame, notes = prepare(source, units, temp_c, id_column, ignore_columns, density_column, balance_on,
                                  missing, max_input_mb, sheet, overlays)
     chunks = chunks_of(frame, chunk_rows)

@@ -1,21 +1,20 @@
 """Input tables of a batch run: reading a CSV or XLSX file, and checking its columns.
 
-Cells are read as text (CSV) so that every worker parses each value the same way, with Python's
-correctly rounded float(). A file larger than the size limit (:data:`MAX_INPUT_MB`, which the
+Cells are read as text (CSV and XLSX, by :mod:`phasekit.chemistry.tables`) so that every worker
+parses each value the same way, with Python's correctly rounded float(). A file larger than the size limit (:data:`MAX_INPUT_MB`, which the
 caller may raise) is refused before it is read: at about 60 bytes per analysis, 64 MB is a million
 analyses, an hour of work on two cores; split such a file, or raise the limit knowingly.
 """
 
 from __future__ import annotations
 
-import csv
 import os
-import zipfile
 from pathlib import Path
 
 import pandas as pd
 
 from phasekit.chemistry.species import is_species, parse_species
+from phasekit.chemistry.tables import PROBLEM_COLUMN, read_table_file
 from phasekit.errors import InputError
 
 #: largest input file read by default, in MB (10**6 bytes)
@@ -23,83 +22,50 @@ MAX_INPUT_MB = 64.0
 SUFFIXES = (".csv", ".xlsx", ".xlsm")
 
 
-def _check_path(source, max_mb: float) -> Path:
-    path = Path(source)
-    if path.suffix.lower() not in SUFFIXES:
-        raise InputError("input", str(source), "a .csv or .xlsx file")
-    if not path.exists():
-        raise InputError("input", str(source), "the path of an existing .csv or .xlsx file (no such file)")
-    if not path.is_file():
-        raise InputError("input", str(source), "the path of a file (this is a directory)")
-    size = os.path.getsize(path)
-    if size > max_mb * 1e6:
-        raise InputError("input", f"{source} ({size / 1e6:.1f} MB)",
-                         f"a file of at most {max_mb:g} MB (split it into smaller files, or raise the limit "
-                         "with --max-input-mb)")
-    if size == 0:
-        raise InputError("input", str(source), "a table with a header row and rows of analyses (the file is empty)")
-    return path
-
-
-def _duplicate_header(path: Path) -> None:
-    with open(path, newline="", encoding="utf-8-sig") as fh:
-        header = next(csv.reader(fh), [])
-    names = [h.strip() for h in header]
-    for name in names:
-        if name and names.count(name) > 1:
-            raise InputError("column", name, "each column name once in the header")
-
-
-def read_source(source, max_mb: float = MAX_INPUT_MB, sheet=0) -> pd.DataFrame:
-    """The raw cells of a table of analyses.
+def read_source(source, max_mb: float = MAX_INPUT_MB, sheet=None, notes: list | None = None) -> pd.DataFrame:
+    """The raw cells of a table of analyses (read by :mod:`phasekit.chemistry.tables`).
 
     Parameters
     ----------
     source : str, path or pandas.DataFrame
         A ``.csv`` or ``.xlsx`` file, or a DataFrame (used as it is).
     max_mb : float
-        Refuse files larger than this (MB).
-    sheet : int or str
-        Sheet of an XLSX file.
+        Refuse files larger than this (MB), before they are read.
+    sheet : int, str or None
+        Sheet of an XLSX file (name, or number from 1); by default the one sheet of analyses.
+    notes : list, optional
+        Receives what the reader decided (separator, decimal comma, sheet).
 
     Returns
     -------
     pandas.DataFrame
-        Column names stripped of spaces; CSV cells as text (empty cells NaN).
+        Column names stripped of spaces; cells as text (empty cells ``""``). A file's rows that
+        cannot be read as written (a ragged row) are kept, with the reason in the column
+        :data:`~phasekit.chemistry.tables.PROBLEM_COLUMN`.
 
     Raises
     ------
     InputError
-        Missing, empty, oversized or unreadable file, a duplicated column, or a table without rows.
+        Missing, empty, oversized or unreadable file, a duplicated column, several sheets of
+        analyses without ``sheet``, or a table without rows.
     """
     if isinstance(source, pd.DataFrame):
         df = source.copy()
-        where = "the table"
-    else:
-        if not isinstance(source, str | os.PathLike):
-            raise InputError("input", type(source).__name__, "the path of a .csv or .xlsx file, or a DataFrame")
-        path = _check_path(source, max_mb)
-        where = str(source)
-        try:
-            if path.suffix.lower() == ".csv":
-                _duplicate_header(path)
-                df = pd.read_csv(path, dtype=str, skipinitialspace=True, encoding="utf-8-sig")
-            else:
-                df = pd.read_excel(path, sheet_name=sheet, engine="openpyxl", dtype=object)
-        except pd.errors.EmptyDataError:
-            raise InputError("input", where, "a table with a header row and rows of analyses (no columns)") from None
-        except (pd.errors.ParserError, UnicodeDecodeError, zipfile.BadZipFile, OSError) as exc:
-            text = str(exc).strip().splitlines()[0] if str(exc).strip() else type(exc).__name__
-            raise InputError("input", where, f"a readable table ({text})") from None
-        except ValueError as exc:  # e.g. a sheet that does not exist
-            raise InputError("input", where, f"a readable table ({exc})") from None
-    df.columns = [str(c).strip() for c in df.columns]
-    if len(set(df.columns)) != len(df.columns):
-        dup = next(c for c in df.columns if list(df.columns).count(c) > 1)
-        raise InputError("column", dup, "each column name once in the header")
-    if len(df) == 0:
-        raise InputError("input", f"{where}: a header without rows", "at least one row of analyses")
-    return df
+        df.columns = [str(c).strip() for c in df.columns]
+        if len(set(df.columns)) != len(df.columns):
+            dup = next(c for c in df.columns if list(df.columns).count(c) > 1)
+            raise InputError("column", dup, "each column name once in the header")
+        if len(df) == 0:
+            raise InputError("input", "the table: a header without rows", "at least one row of analyses")
+        return df
+    if not isinstance(source, str | os.PathLike):
+        raise InputError("input", type(source).__name__, "the path of a .csv or .xlsx file, or a DataFrame")
+    if Path(source).suffix.lower() not in SUFFIXES:
+        raise InputError("input", str(source), "a .csv or .xlsx file")
+    table = read_table_file(source, max_mb, sheet)
+    if notes is not None:
+        notes.extend(table.notes)
+    return table.with_problem_column() if table.problems else table.frame
 
 
 def plan_columns(df: pd.DataFrame, id_column=None, ignore_columns=(), density_column=None):
@@ -119,7 +85,7 @@ def plan_columns(df: pd.DataFrame, id_column=None, ignore_columns=(), density_co
         A named column that the table lacks, an unknown column, two columns of one species, or no
         species column.
     """
-    columns = list(df.columns)
+    columns = [c for c in df.columns if c != PROBLEM_COLUMN]
     ignore = [str(c).strip() for c in ignore_columns]
     for field, name in (("id_column", id_column), ("density_column", density_column)):
         if name is not None and name not in columns:

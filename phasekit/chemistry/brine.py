@@ -40,6 +40,7 @@ from phasekit.chemistry.density import estimate_density
 from phasekit.chemistry.salts import parse_salt, salt_formula_mass
 from phasekit.chemistry.species import M_WATER, SPECIES, parse_species
 from phasekit.errors import AnalysisWarning, ConvergenceError, InputError, PhasekitError, RangeError, ValidityWarning
+from phasekit.validate import MAX_MOLALITY
 
 #: |charge balance| (%) above which an analysis carries a warning (see the module docstring)
 CHARGE_BALANCE_WARN_PERCENT = 5.0
@@ -270,6 +271,10 @@ class Brine:
             else:
                 m, used_density, dwarn = cls._from_litre_model(per_litre, t, u, factor)
                 notes.extend((w, ValidityWarning) for w in dwarn)
+        for s, x in m.items():
+            if not x <= MAX_MOLALITY:
+                raise InputError(f"values[{s!r}]", vals[s], f"{what} that gives at most {MAX_MOLALITY:g} mol/kg water "
+                                 f"(it gives {x:.3g} mol/kg; check the units)")
         brine = cls._make(m)
         brine.conversion_density = used_density
         brine._check_analysis(balance_on, notes)
@@ -414,7 +419,7 @@ class Brine:
     @classmethod
     def read_table(cls, source, units: str = "mg/kg", id_column: str | None = None, density_column: str | None = None,
                    temp_c: float = 25.0, ignore_columns: Iterable[str] = (), missing: str = "error",
-                   sheet_name=0) -> dict:
+                   sheet_name=None, max_mb: float = 64.0) -> dict:
         """Read many analyses, one per row, from a DataFrame, a CSV or an XLSX file.
 
         Parameters
@@ -433,8 +438,10 @@ class Brine:
             Columns that are neither species, ids nor densities (dates, pond names, notes).
         missing : {"error", "zero"}
             What an empty species cell means (see :meth:`from_analysis`).
-        sheet_name : int or str
-            Sheet of an XLSX file.
+        sheet_name : str or int, optional
+            Sheet of an XLSX file (name, or number from 1); by default its one sheet of analyses.
+        max_mb : float
+            Refuse a file larger than this (MB) before it is read.
 
         Returns
         -------
@@ -449,8 +456,12 @@ class Brine:
             For the table as a whole: unreadable source, unknown or duplicated columns, duplicated
             sample ids, no species column, no rows.
         """
-        df = cls._read_frame(source, sheet_name)
+        from phasekit.chemistry.tables import PROBLEM_COLUMN
+
         u, basis, _ = _unit(units)
+        df = cls._read_frame(source, sheet_name, max_mb)
+        problems = df[PROBLEM_COLUMN].tolist() if PROBLEM_COLUMN in df.columns else [""] * len(df)
+        df = df.drop(columns=[PROBLEM_COLUMN], errors="ignore")
         columns = [str(c).strip() for c in df.columns]
         df = df.copy()
         df.columns = columns
@@ -497,6 +508,9 @@ class Brine:
             if sid in seen:
                 raise InputError(id_column or "index", sid, f"unique sample ids ({sid!r} is in rows {seen[sid]} and {pos + 1})")
             seen[sid] = pos + 1
+            if problems[pos]:
+                out[sid] = InputError(f"row {sid!r}", f"row {pos + 1}", f"a row that can be read ({problems[pos]})")
+                continue
             values = {c: row[c] for c in species_cols}
             dens = None
             if density_column is not None:
@@ -525,23 +539,20 @@ class Brine:
         return out
 
     @staticmethod
-    def _read_frame(source, sheet_name) -> pd.DataFrame:
+    def _read_frame(source, sheet_name, max_mb) -> pd.DataFrame:
+        from phasekit.chemistry.tables import read_table_file
+
         if isinstance(source, pd.DataFrame):
             return source
         if not isinstance(source, str | Path):
             raise InputError("source", type(source).__name__, "a pandas DataFrame or the path of a .csv or .xlsx file")
         path = Path(source)
-        suffix = path.suffix.lower()
-        if suffix not in (".csv", ".xlsx", ".xlsm"):
+        if path.suffix.lower() not in (".csv", ".xlsx", ".xlsm"):
             raise InputError("source", str(source), "a .csv or .xlsx file, or a pandas DataFrame")
         if not path.is_file():
             raise InputError("source", str(source), "the path of an existing file")
-        try:
-            if suffix == ".csv":
-                return pd.read_csv(path, skipinitialspace=True)
-            return pd.read_excel(path, sheet_name=sheet_name, engine="openpyxl")
-        except (ValueError, OSError, pd.errors.ParserError) as exc:
-            raise InputError("source", str(source), f"a readable table ({exc})") from None
+        table = read_table_file(path, max_mb, sheet=sheet_name, option="max_mb")
+        return table.with_problem_column() if table.problems else table.frame
 
     # ------------------------------------------------------------------ properties
     @property

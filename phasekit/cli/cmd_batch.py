@@ -25,7 +25,9 @@ def _batch(args) -> int:
 
     units = c.require_units(args)
     ignore = [s for s in args.ignore_columns.split(",") if s.strip()]
-    raw = read_source(args.file, args.max_input_mb)  # a bad file stops here, before any worker starts
+    read_notes: list = []
+    # a bad file stops here, before any worker starts
+    raw = read_source(args.file, args.max_input_mb, sheet=args.sheet, notes=read_notes)
     model = c.model_of(args)  # and so does a bad overlay
     bar = _progress_bar(len(raw), not args.no_progress)
     try:
@@ -36,6 +38,7 @@ def _batch(args) -> int:
     finally:
         if bar is not None:
             bar.close()
+    res.warnings[:0] = [n for n in read_notes if n not in res.warnings]
     table = res.table
     head = table.columns[0]
     rep = c.Report(scalars={"rows": res.n_rows, "failed": res.n_failed, "units": args.units, "temp_c": args.temp,
@@ -68,6 +71,8 @@ def register(sub) -> None:
     p.add_argument("--units", metavar="UNITS", help=c.UNITS_HELP)
     c.add_temp(p)
     g = p.add_argument_group("table")
+    g.add_argument("--sheet", metavar="NAME|N", help="sheet of an XLSX workbook (name, or number from 1); by default "
+                   "the one sheet whose header names species")
     g.add_argument("--id-column", metavar="NAME", help="column of sample ids (default: the first column, if it is "
                    "not a species); copied to the output")
     g.add_argument("--ignore-columns", default="", metavar="A,B", help="columns to ignore (dates, notes)")

@@ -8,6 +8,7 @@ from pathlib import Path
 import pandas as pd
 
 from phasekit.chemistry.species import is_species
+from phasekit.chemistry.tables import PROBLEM_COLUMN
 from phasekit.cli import common as c
 from phasekit.errors import InputError
 from phasekit.overlay import PARAM_KINDS, overlay_from_fit
@@ -19,12 +20,17 @@ def _read_data(path: str) -> pd.DataFrame:
     from phasekit.batch.source import read_source
 
     df = read_source(path)
-    out = df.copy()
+    out = df.drop(columns=[PROBLEM_COLUMN], errors="ignore")
+    if PROBLEM_COLUMN in df.columns:
+        bad = [(i, p) for i, p in enumerate(df[PROBLEM_COLUMN]) if p]
+        if bad:
+            raise InputError(f"--data row {bad[0][0] + 1}", path, f"rows that can be read ({bad[0][1]})")
     for col in out.columns:
         if col not in _NUMERIC and not is_species(col):
             continue  # text columns (salt, solids, source ...) are passed as they are
         conv = pd.to_numeric(out[col], errors="coerce")
-        bad = conv.isna() & out[col].notna()
+        blank = out[col].isna() | (out[col].astype(str).str.strip() == "")
+        bad = conv.isna() & ~blank
         if bad.any():
             r = int(bad.to_numpy().nonzero()[0][0])
             raise InputError(f"--data row {r + 1} column[{col!r}]", out[col].iloc[r], "a number")

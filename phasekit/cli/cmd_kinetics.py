@@ -8,7 +8,9 @@ from phasekit.errors import InputError
 
 def _fractions(text: str) -> dict:
     pairs = c.parse_pairs(text, "--ore", "sylvite=0.3,halite=0.65")
-    return {k: float(v) for k, v in pairs.items()}
+    from phasekit.validate import number
+
+    return {k: number(f"--ore {k}", v, "a mass fraction from 0 to 1 (a number)", text=True) for k, v in pairs.items()}
 
 
 def _leach(args) -> c.Report:

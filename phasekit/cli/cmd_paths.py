@@ -105,8 +105,12 @@ def read_ponds_file(path: str) -> list[dict]:
     """Ponds from a CSV: columns name, temp_c, and one of water_removed, concentration_factor,
     until_saturated (solids joined by '+'), optionally mode."""
     from phasekit.batch.source import read_source
+    from phasekit.chemistry.tables import PROBLEM_COLUMN
 
     df = read_source(path)
+    if PROBLEM_COLUMN in df.columns:
+        bad = next((i, p) for i, p in enumerate(df[PROBLEM_COLUMN]) if p)
+        raise InputError(f"--ponds row {bad[0] + 1}", path, f"rows that can be read ({bad[1]})")
     unknown = [col for col in df.columns if col not in _POND_KEYS]
     if unknown:
         raise InputError("--ponds column", unknown[0], "name, temp_c, water_removed, concentration_factor, "

@@ -93,6 +93,8 @@ def add_brine_options(p, many: bool = False) -> None:
                    help="the sample id (first column, or --id-column) or row number (from 1) in --input")
     g.add_argument("--id-column", metavar="NAME", help="column of sample ids in --input (default: the first "
                    "column, if it is not a species)")
+    g.add_argument("--sheet", metavar="NAME|N", help="sheet of an XLSX --input (name, or number from 1); by default "
+                   "the one sheet whose header names species")
     g.add_argument("--ignore-columns", metavar="A,B", default="", help="columns of --input to ignore (comma-separated)")
     g.add_argument("--units", metavar="UNITS", help=UNITS_HELP)
     g.add_argument("--density", type=float, metavar="KG_PER_L", help="density for per-litre units (default: the "
@@ -176,7 +178,10 @@ def _balanced(brine, policy: str, notes: list):
                              "an electrically neutral analysis with --balance-on none (or --balance-on auto, or the "
                              "ion to balance on, e.g. --balance-on Cl)")
         return brine
-    out = brine.balance(on=ion)
+    try:
+        out = brine.balance(on=ion)
+    except InputError as err:
+        raise InputError("--balance-on", policy, err.expected.replace(", or pass allow_decrease=True", "")) from None
     notes.append(out.warnings[-1])
     return out
 
@@ -184,8 +189,9 @@ def _balanced(brine, policy: str, notes: list):
 def _from_file(args, row, notes):
     from phasekit.batch.source import plan_columns, read_source
     from phasekit.chemistry.brine import Brine
+    from phasekit.chemistry.tables import PROBLEM_COLUMN
 
-    df = read_source(args.input)
+    df = read_source(args.input, sheet=getattr(args, "sheet", None), notes=notes)
     ignore = [c for c in (args.ignore_columns or "").split(",") if c.strip()]
     species, id_col = plan_columns(df, args.id_column, ignore)
     if row is None:
@@ -209,6 +215,9 @@ def _from_file(args, row, notes):
             raise InputError("--row", row, f"{what}a row number from 1 to {len(df)} of {args.input}")
     values = {c: df[c].iloc[pos] for c in species}
     label = df[id_col].iloc[pos] if id_col else pos + 1
+    problem = df[PROBLEM_COLUMN].iloc[pos] if PROBLEM_COLUMN in df.columns else ""
+    if problem:
+        raise InputError(f"--row {label!r}", row if row is not None else pos + 1, f"a row that can be read ({problem})")
     try:
         return Brine.from_analysis(values, units=require_units(args), density=args.density, temp_c=_temp_of(args),
                                    missing="error")
@@ -407,12 +416,38 @@ def _write_xlsx(report: Report, path: str) -> None:
         raise InputError("--output", path, f"a file that can be written ({exc.strerror})") from None
 
 
+def input_paths(args) -> list[str]:
+    """The files a command line reads (its table, --input, --overlay files)."""
+    found = [getattr(args, name, None) for name in ("file", "input", "data")]
+    found += list(getattr(args, "overlay", None) or [])
+    return [str(f) for f in found if isinstance(f, str) and f]
+
+
+def _same_file(a: str, b: str) -> bool:
+    pa, pb = Path(a), Path(b)
+    try:
+        if pa.exists() and pb.exists():
+            return pa.samefile(pb)
+    except OSError:
+        pass
+    return pa.resolve() == pb.resolve()
+
+
+def check_not_an_input(option: str, path: str, args) -> None:
+    """Refuse to write ``path`` when it is one of the files the command reads."""
+    for given in input_paths(args):
+        if _same_file(path, given):
+            raise InputError(option, path, f"a file other than the input {given} (phasekit never writes over a "
+                                           "file it reads; choose another output name)")
+
+
 def check_output_path(args) -> None:
-    """Refuse an output that cannot be written before any work is done."""
+    """Refuse an output that cannot be written, or that is an input, before any work is done."""
     out = getattr(args, "output", None)
     if getattr(args, "format", None) == "xlsx" and not out:
         raise InputError("--output", None, "a file name ending in .xlsx for --format xlsx (it is binary)")
     if out:
+        check_not_an_input("--output", out, args)
         parent = Path(out).resolve().parent
         if not parent.is_dir():
             raise InputError("--output", out, f"a file in an existing directory ({parent} does not exist)")
@@ -420,7 +455,9 @@ def check_output_path(args) -> None:
             raise InputError("--output", out, "a file name (this is a directory)")
 
 
-def check_plot_path(path: str) -> None:
+def check_plot_path(path: str, args=None) -> None:
+    if args is not None:
+        check_not_an_input("--plot", path, args)
     if Path(path).suffix.lower() not in PLOT_SUFFIXES:
         raise InputError("--plot", path, "a file name ending in .png, .svg or .pdf")
     parent = Path(path).resolve().parent

@@ -78,6 +78,21 @@ def _warnings_out(command: str, caught, extra) -> None:
         _say(command, "warning", first + (f" (and {more} similar warning{'s' if more > 1 else ''})" if more else ""))
 
 
+#: library argument names that a command line sets with an option of another spelling
+_OPTION_OF = {"scheduler": "--scheduler", "sheet": "--sheet", "overlay": "--overlay", "overlays": "--overlay",
+              "chunk_rows": "--chunk-rows", "workers": "--workers", "id_column": "--id-column",
+              "density_column": "--density-column", "ignore_columns": "--ignore-columns"}
+
+
+def _in_option_words(err):
+    """An input error of the library named by the option the user typed (``scheduler`` -> ``--scheduler``)."""
+    from phasekit.errors import InputError
+
+    if isinstance(err, InputError) and err.field in _OPTION_OF:
+        return type(err)(_OPTION_OF[err.field], err.value, err.expected)
+    return err
+
+
 def main(argv: list[str] | None = None) -> int:
     """Run the ``phasekit`` command; returns its exit code."""
     from phasekit.errors import ConvergenceError, PhasekitError
@@ -97,7 +112,7 @@ def main(argv: list[str] | None = None) -> int:
             warnings.simplefilter("always")
             c.check_output_path(args)
             if getattr(args, "plot", None):
-                c.check_plot_path(args.plot)
+                c.check_plot_path(args.plot, args)
             result = args.func(args)
             if getattr(args, "returns_code", False):
                 code = int(result)
@@ -115,7 +130,7 @@ def main(argv: list[str] | None = None) -> int:
         return code
     except PhasekitError as err:
         _warnings_out(command, caught, args.notes)
-        _say(command, "error", err)
+        _say(command, "error", _in_option_words(err))
         return c.EXIT_INPUT
     except c.Unavailable as err:
         _say(command, "not available", err)

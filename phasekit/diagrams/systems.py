@@ -29,6 +29,7 @@ from phasekit.chemistry.salts import parse_salt, salt_formula_mass
 from phasekit.chemistry.species import M_WATER
 from phasekit.errors import InputError, RangeError
 from phasekit.thermo.water import T_MAX_C, T_MIN_C
+from phasekit.validate import names
 
 #: finite-difference step on the unknowns
 FD_H = 1e-7
@@ -117,7 +118,7 @@ def system_solids(model, ions: list, exclude=(), field_name: str = "exclude") ->
         if set(np.flatnonzero(nu > 0).tolist()) <= ion_idx:
             out.append(k)
     excl = set()
-    for name in exclude:
+    for name in names(field_name, exclude, "solid names, e.g. ['glaserite']"):
         try:
             excl.add(model.solids.index[model.solids.resolve(name)])
         except InputError:

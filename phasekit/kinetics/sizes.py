@@ -29,6 +29,17 @@ from scipy.special import erf
 from phasekit.errors import InputError
 from phasekit.kinetics.properties import as_number, positive
 
+#: largest grain size accepted, µm: 10 cm, beyond the suspended grains the film model describes (a
+#: larger value is a slip of units: µm typed as mm or m)
+MAX_GRAIN_UM = 100_000.0
+
+
+def _grain(value, field: str) -> float:
+    d = positive(value, field, "µm")
+    if d > MAX_GRAIN_UM:
+        raise InputError(field, value, f"a grain size in µm of at most {MAX_GRAIN_UM:g} µm (10 cm); is it in mm?")
+    return d
+
 #: fractions must sum to one within this
 FRACTION_SUM_TOL = 1e-3
 
@@ -137,7 +148,7 @@ def lognormal(d50_um, gsd, n_classes: int = 24) -> SizeDistribution:
     n_classes : int
         Number of classes, equally spaced in ln d over ±3.5 ln σg.
     """
-    d50 = positive(d50_um, "d50_um", "µm")
+    d50 = _grain(d50_um, "d50_um")
     g = as_number(gsd, "gsd", "a geometric standard deviation > 1")
     if g <= 1.0:
         raise InputError("gsd", gsd, "a geometric standard deviation > 1 (use single() for one size)")
@@ -162,7 +173,7 @@ def rosin_rammler(size_um, spread, n_classes: int = 24) -> SizeDistribution:
     n_classes : int
         Number of classes, equally spaced in ln d between R = 1 - 1e-4 and R = 1e-4.
     """
-    dp = positive(size_um, "size_um", "µm")
+    dp = _grain(size_um, "size_um")
     n = positive(spread, "spread", "dimensionless exponent")
     k = _count(n_classes)
     d_lo = dp * (-math.log(1.0 - 1e-4)) ** (1.0 / n)
@@ -176,7 +187,7 @@ def rosin_rammler(size_um, spread, n_classes: int = 24) -> SizeDistribution:
 
 def single(diameter_um) -> SizeDistribution:
     """All particles of one diameter (µm)."""
-    d = positive(diameter_um, "diameter_um", "µm")
+    d = _grain(diameter_um, "diameter_um")
     return SizeDistribution(np.array([d * 1e-6]), np.array([1.0]), f"single size {d:g} µm")
 
 

@@ -15,9 +15,12 @@ from phasekit.errors import InputError, RangeError
 from phasekit.paths.engine import run_programme
 from phasekit.paths.result import PathResult
 from phasekit.thermo.water import T_MAX_C, T_MIN_C
+from phasekit.validate import is_number, number
 
 
 def _temp(value, field):
+    if not is_number(value) and not isinstance(value, str):
+        raise InputError(field, value, "a temperature in °C")
     try:
         t = float(value)
     except (TypeError, ValueError):
@@ -28,6 +31,8 @@ def _temp(value, field):
 
 
 def _fraction(value, field, upper=1.0):
+    if not is_number(value) and not isinstance(value, str):
+        raise InputError(field, value, "a number")
     try:
         f = float(value)
     except (TypeError, ValueError):
@@ -139,12 +144,7 @@ def evaporate(brine, temp_c: float = 25.0, mode: str = "fractional", water_remov
     m0 = _initial(model, brine)
     cond = stop_when
     if concentration_factor is not None:
-        try:
-            cf = float(concentration_factor)
-        except (TypeError, ValueError):
-            raise InputError("concentration_factor", concentration_factor, "a number >= 1") from None
-        if not np.isfinite(cf) or cf < 1:
-            raise InputError("concentration_factor", concentration_factor, "a number >= 1")
+        cf = number("concentration_factor", concentration_factor, "a number >= 1", lo=1.0)
 
         def cond(path, st, cf=cf, inner=stop_when):
             return 1.0 / st.w >= cf or (inner is not None and inner(path, st))

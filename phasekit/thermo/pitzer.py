@@ -20,6 +20,7 @@ ln γ_i = ∂g/∂m_i and ln a_w = -M_w Σm φ with Σm (φ - 1) = Σ m_i ln γ_
 from __future__ import annotations
 
 import math
+import numbers
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -31,6 +32,7 @@ from phasekit.thermo import tempfn
 from phasekit.thermo.etheta import jtable
 from phasekit.thermo.kernel import PARALLEL_MIN_ROWS, pitzer_rows_parallel, pitzer_rows_serial
 from phasekit.thermo.water import T_MAX_C, T_MIN_C, aphi
+from phasekit.validate import MAX_MOLALITY
 
 
 @dataclass
@@ -190,6 +192,9 @@ class PitzerModel:
                 cols[name] = c
             arr = np.zeros((molalities.shape[0], len(self.species)))
             for name, c in cols.items():
+                if pd.api.types.is_bool_dtype(molalities[c]) or any(isinstance(v, bool | np.bool_)
+                                                                     for v in molalities[c].tolist()):
+                    raise InputError(f"molalities[{c!r}]", "True/False values", "numbers (mol/kg water)")
                 col = pd.to_numeric(molalities[c], errors="coerce").to_numpy(dtype=float)
                 bad = np.isnan(col) & molalities[c].notna().to_numpy()
                 if bad.any():
@@ -204,6 +209,8 @@ class PitzerModel:
             arr = np.zeros((1, len(self.species)))
             for k, v in items:
                 name = self.db.parse_species(k)
+                if isinstance(v, bool | np.bool_):
+                    raise InputError(f"molalities[{k!r}]", v, "a number (mol/kg water), not True/False")
                 try:
                     val = float(v)
                 except (TypeError, ValueError):
@@ -213,11 +220,13 @@ class PitzerModel:
         raise InputError("molalities", type(molalities).__name__, "a mapping or a pandas DataFrame")
 
     def _check(self, m, temp_c, index, check_charge=True):
-        if not (np.isfinite(m).all() and (m >= 0).all()):
-            bad = ~np.isfinite(m) | (m < 0)
+        temp_c = self._check_temp(temp_c)
+        if not (np.isfinite(m).all() and (m >= 0).all() and (m <= MAX_MOLALITY).all()):
+            bad = ~np.isfinite(m) | (m < 0) | (m > MAX_MOLALITY)
             r, c = np.argwhere(bad)[0]
             where = f" row {index[r]!r}" if index is not None else ""
-            raise InputError(f"molalities[{self.species[c]!r}]{where}", m[r, c], "a finite molality >= 0")
+            raise InputError(f"molalities[{self.species[c]!r}]{where}", float(m[r, c]),
+                             f"a finite molality from 0 to {MAX_MOLALITY:g} mol/kg water")
         if check_charge:
             imb = m @ self.z
             tot = m @ np.abs(self.z)
@@ -242,6 +251,23 @@ class PitzerModel:
             bad = tt[~((tt >= T_MIN_C) & (tt <= T_MAX_C))][0]
             raise RangeError("temp_c", float(bad), f"a temperature from {T_MIN_C:g} to {T_MAX_C:g} °C")
 
+    @staticmethod
+    def _check_temp(temp_c):
+        """A temperature (°C) or an array of them: numbers, not booleans, None or text."""
+        if np.ndim(temp_c) == 0:
+            if isinstance(temp_c, bool | np.bool_) or not isinstance(temp_c, numbers.Real):
+                raise InputError("temp_c", temp_c, "a temperature in °C (a number)")
+            if not math.isfinite(float(temp_c)):
+                raise RangeError("temp_c", temp_c, f"a temperature from {T_MIN_C:g} to {T_MAX_C:g} °C")
+            return temp_c
+        arr = np.asarray(temp_c)
+        if arr.dtype.kind not in "iuf":
+            raise InputError("temp_c", f"array of {arr.dtype}", "temperatures in °C (numbers)")
+        if not np.isfinite(arr).all():
+            raise RangeError("temp_c", "an array with a non-finite value", f"temperatures from {T_MIN_C:g} to "
+                             f"{T_MAX_C:g} °C")
+        return temp_c
+
     def _validity(self, m, temp_c, ionic_strength) -> list[str]:
         """Validity-range warnings for these compositions (cached by the species present)."""
         if m.shape[0] == 1:
@@ -254,10 +280,10 @@ class PitzerModel:
             tmin = tmax = float(temp_c)
         else:
             tmin, tmax = float(np.min(temp_c)), float(np.max(temp_c))
-        key = (present, tmin, tmax, imax > self.db.ionic_strength_max)
+        key = (present, tmin, tmax)
         hit = self._validity_cache.get(key)
         if hit is not None:
-            return list(hit)
+            return list(hit) + self._strength_warning(imax)
         out = []
         nc = len(self.cations)
         pc = np.zeros(nc, dtype=bool)
@@ -282,15 +308,17 @@ class PitzerModel:
             if (tmin < lo or tmax > hi) and present_set.issuperset(members):
                 out.append(f"temperature {tmin:g}–{tmax:g} °C outside the validity range {lo:g}–{hi:g} °C "
                            f"of the mixing parameter {label}")
-        if key[3]:
-            out.append(
-                f"ionic strength {imax:.3g} mol/kg above the model's validity limit "
-                f"{self.db.ionic_strength_max:g} mol/kg"
-            )
         if len(self._validity_cache) > 4096:
             self._validity_cache.clear()
         self._validity_cache[key] = tuple(out)
-        return out
+        return out + self._strength_warning(imax)
+
+    def _strength_warning(self, imax: float) -> list[str]:
+        """The warning of an ionic strength above the validity limit (never cached: it names the value)."""
+        if imax > self.db.ionic_strength_max:
+            return [f"ionic strength {imax:.3g} mol/kg above the model's validity limit "
+                    f"{self.db.ionic_strength_max:g} mol/kg"]
+        return []
 
     # ----------------------------------------------------------------- core
     def compute(self, m, temp_c):

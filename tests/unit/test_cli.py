@@ -200,12 +200,12 @@ def test_app_subcommand_starts_the_web_app(capsys, monkeypatch):
     import webapp.app
 
     seen = {}
-    monkeypatch.setattr(webapp.app, "run", lambda host, port, overlays=(): seen.update(host=host, port=port,
-                                                                                       overlays=overlays))
+    monkeypatch.setattr(webapp.app, "run", lambda host, port, overlays=(), allow_hosts=(): seen.update(
+        host=host, port=port, overlays=overlays, allow_hosts=allow_hosts))
     assert main(["app", "--port", "8123"]) == 0
-    assert seen == {"host": "127.0.0.1", "port": 8123, "overlays": []}
-    assert main(["app", "--overlay", "a.toml", "--overlay", "b.toml"]) == 0
-    assert seen["overlays"] == ["a.toml", "b.toml"]
+    assert seen == {"host": "127.0.0.1", "port": 8123, "overlays": [], "allow_hosts": []}
+    assert main(["app", "--overlay", "a.toml", "--overlay", "b.toml", "--allow-host", "pk.saltworks.example"]) == 0
+    assert seen["overlays"] == ["a.toml", "b.toml"] and seen["allow_hosts"] == ["pk.saltworks.example"]
 
 
 # ------------------------------------------------------------------------------ batch
