@@ -27,6 +27,7 @@ Robinson, R. A. & Stokes, R. H. (1959), Electrolyte Solutions, 2nd ed., Butterwo
 from __future__ import annotations
 
 import math
+import re
 import warnings
 from dataclasses import dataclass, field
 
@@ -171,6 +172,25 @@ def _supersaturated(model, m, temp_c) -> list[str]:
     return out
 
 
+_RANGE = re.compile(r"^temperature \S+ °C outside the validity range (\S+) °C of the (?:mixing parameter )?(.+?)"
+                    r"(?: parameters)?$")
+
+
+def _condense(found: list[str], temp_c: float) -> list[str]:
+    """One warning for all the parameter sets used outside their temperature range (a freezing point of seawater
+    would otherwise give one line for each of some thirty sets), the other warnings as they are."""
+    sets, rest = {}, []
+    for w in found:
+        hit = _RANGE.match(w)
+        if hit:
+            sets.setdefault(hit.group(1), []).append(hit.group(2))
+        else:
+            rest.append(w)
+    out = [f"temperature {temp_c:.4g} °C outside the validity range {rng} °C of the Pitzer parameters of "
+           f"{', '.join(names)}: they are extrapolated" for rng, names in sets.items()]
+    return out + rest
+
+
 def _emit(found: list[str]) -> list[str]:
     found = list(dict.fromkeys(found))
     for w in found:
@@ -217,7 +237,7 @@ def vapour_pressure(brine, temp_c: float, model=None) -> VapourPressure:
     m = _composition(model, brine)
     ln_aw, ion, found = _state(model, m, t)
     p0 = saturation_pressure_kpa(t)
-    return VapourPressure(water_activity=math.exp(ln_aw), ionic_strength=ion, warnings=_emit(found),
+    return VapourPressure(water_activity=math.exp(ln_aw), ionic_strength=ion, warnings=_emit(_condense(found, t)),
                           database=model.label, pressure_kpa=math.exp(ln_aw) * p0, pure_water_kpa=p0, temp_c=t)
 
 
@@ -285,7 +305,7 @@ def boiling_point(brine, pressure_kpa: float = ATMOSPHERE_KPA, model=None) -> Bo
     found += _supersaturated(model, m, t)
     t_pure = float(brentq(lambda x: math.log(saturation_pressure_kpa(x)) - ln_p, 0.0, 350.0, xtol=1e-7)) \
         if p < saturation_pressure_kpa(350.0) else math.nan
-    return BoilingPoint(water_activity=math.exp(ln_aw), ionic_strength=ion, warnings=_emit(found),
+    return BoilingPoint(water_activity=math.exp(ln_aw), ionic_strength=ion, warnings=_emit(_condense(found, t)),
                         database=model.label, temp_c=t, pressure_kpa=p, elevation_c=t - t_pure)
 
 
@@ -362,5 +382,5 @@ def freezing_point(brine, model=None) -> FreezingPoint:
                      f"of the solid {ice.name}")
     found += _supersaturated(model, m, t)
     t_pure = float(brentq(ln_k, T_LIQUID_MIN_C, t_top, xtol=1e-9))
-    return FreezingPoint(water_activity=math.exp(ln_aw), ionic_strength=ion, warnings=_emit(found),
+    return FreezingPoint(water_activity=math.exp(ln_aw), ionic_strength=ion, warnings=_emit(_condense(found, t)),
                          database=model.label, temp_c=t, depression_c=t_pure - t, ice=ice.name)
