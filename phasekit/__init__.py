@@ -2,6 +2,7 @@
 
 from phasekit.chemistry.brine import Brine
 from phasekit.diagrams import isotherm, read_diagram, reciprocal_isotherm, seawater_isotherm, ternary_polytherm
+from phasekit.equilibrium.colligative import boiling_point, freezing_point
 from phasekit.equilibrium.solubility import polytherm, solubility
 from phasekit.errors import ConvergenceError, InputError, PhasekitError, RangeError, ValidityWarning
 from phasekit.model import Model, default_model, load_model
@@ -18,10 +19,12 @@ __all__ = [
     "RangeError",
     "ValidityWarning",
     "Pond",
+    "boiling_point",
     "cool",
     "default_model",
     "dissolve",
     "evaporate",
+    "freezing_point",
     "heat",
     "hot_cold_cycle",
     "load_model",

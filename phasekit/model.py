@@ -40,12 +40,23 @@ class Model(PitzerModel):
         st = self.solids[name].stoichiometry
         return {k: int(v) if float(v).is_integer() else v for k, v in st.items()}
 
-    # the equilibrium layer adds: saturation, equilibrate (see phasekit.equilibrium)
+    # the equilibrium layer adds: saturation, vapour_pressure, equilibrate (see phasekit.equilibrium)
     def saturation(self, brine, temp_c: float, **kwargs):
         """Saturation state of every solid; see :func:`phasekit.equilibrium.saturation.saturation`."""
         from phasekit.equilibrium.saturation import saturation
 
         return saturation(self, brine, temp_c, **kwargs)
+
+    def vapour_pressure(self, brine, temp_c: float):
+        """Water vapour pressure of a brine, kPa: its water activity times that of pure water (IAPWS-IF97).
+
+        Returns a :class:`~phasekit.equilibrium.colligative.VapourPressure` (``.pressure_kpa``,
+        ``.pure_water_kpa``, ``.water_activity``, ``.warnings``; ``float(result)`` is in kPa); see
+        :func:`phasekit.equilibrium.colligative.vapour_pressure` for the errors raised.
+        """
+        from phasekit.equilibrium.colligative import vapour_pressure
+
+        return vapour_pressure(brine, temp_c, model=self)
 
     def equilibrate(self, brine, temp_c: float, **kwargs):
         """Stable assemblage; see :func:`phasekit.equilibrium.solver.equilibrate`."""

@@ -19,10 +19,10 @@ import warnings
 from phasekit import __version__
 from phasekit.cli import common as c
 
-_GROUPS = ("cmd_solubility", "cmd_brine", "cmd_paths", "cmd_diagrams", "cmd_fit", "cmd_uncertainty", "cmd_kinetics",
+_GROUPS = ("cmd_solubility", "cmd_brine", "cmd_colligative", "cmd_paths", "cmd_diagrams", "cmd_fit", "cmd_uncertainty", "cmd_kinetics",
            "cmd_batch", "cmd_app")
 #: order of the subcommands in --help
-ORDER = ("solubility", "polytherm", "saturation", "equilibrate", "isotherm", "evaporate", "cool", "mix", "ponds",
+ORDER = ("solubility", "polytherm", "saturation", "equilibrate", "colligative", "isotherm", "evaporate", "cool", "mix", "ponds",
          "convert", "leach", "fit", "onset", "batch", "app")
 #: warnings of third-party packages that say nothing to a user of phasekit (only warnings raised
 #: from phasekit's own code are shown; these are dropped even then)
@@ -81,7 +81,7 @@ def _warnings_out(command: str, caught, extra) -> None:
 #: library argument names that a command line sets with an option of another spelling
 _OPTION_OF = {"scheduler": "--scheduler", "sheet": "--sheet", "overlay": "--overlay", "overlays": "--overlay",
               "chunk_rows": "--chunk-rows", "workers": "--workers", "id_column": "--id-column",
-              "density_column": "--density-column", "ignore_columns": "--ignore-columns"}
+              "density_column": "--density-column", "ignore_columns": "--ignore-columns", "pressure_kpa": "--pressure"}
 
 
 def _in_option_words(err):

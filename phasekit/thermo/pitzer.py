@@ -31,7 +31,7 @@ from phasekit.errors import InputError, RangeError, warn_validity
 from phasekit.thermo import tempfn
 from phasekit.thermo.etheta import jtable
 from phasekit.thermo.kernel import PARALLEL_MIN_ROWS, pitzer_rows_parallel, pitzer_rows_serial
-from phasekit.thermo.water import T_MAX_C, T_MIN_C, aphi
+from phasekit.thermo.water import T_LIQUID_MIN_C, T_MAX_C, T_MIN_C, aphi
 from phasekit.validate import MAX_MOLALITY
 
 
@@ -219,7 +219,7 @@ class PitzerModel:
             return arr, True, None
         raise InputError("molalities", type(molalities).__name__, "a mapping or a pandas DataFrame")
 
-    def _check(self, m, temp_c, index, check_charge=True):
+    def _check(self, m, temp_c, index, check_charge=True, t_min_c=T_MIN_C):
         temp_c = self._check_temp(temp_c)
         if not (np.isfinite(m).all() and (m >= 0).all() and (m <= MAX_MOLALITY).all()):
             bad = ~np.isfinite(m) | (m < 0) | (m > MAX_MOLALITY)
@@ -242,14 +242,14 @@ class PitzerModel:
                 )
         if np.ndim(temp_c) == 0:
             t = float(temp_c)
-            ok = T_MIN_C <= t <= T_MAX_C
+            ok = t_min_c <= t <= T_MAX_C
         else:
             t = np.asarray(temp_c, dtype=float)
-            ok = bool(np.all((t >= T_MIN_C) & (t <= T_MAX_C)))
+            ok = bool(np.all((t >= t_min_c) & (t <= T_MAX_C)))
         if not ok:
             tt = np.atleast_1d(t)
-            bad = tt[~((tt >= T_MIN_C) & (tt <= T_MAX_C))][0]
-            raise RangeError("temp_c", float(bad), f"a temperature from {T_MIN_C:g} to {T_MAX_C:g} °C")
+            bad = tt[~((tt >= t_min_c) & (tt <= T_MAX_C))][0]
+            raise RangeError("temp_c", float(bad), f"a temperature from {t_min_c:g} to {T_MAX_C:g} °C")
 
     @staticmethod
     def _check_temp(temp_c):
@@ -342,7 +342,8 @@ class PitzerModel:
         return ln_gamma, osm, ln_aw, ion, g
 
     # ----------------------------------------------------------- public API
-    def activity(self, molalities, temp_c: float, check_charge: bool = True) -> ActivityResult:
+    def activity(self, molalities, temp_c: float, check_charge: bool = True,
+                 supercooled: bool = False) -> ActivityResult:
         """Activity coefficients, osmotic coefficient and water activity.
 
         Parameters
@@ -355,13 +356,17 @@ class PitzerModel:
             Temperature in °C (an array gives one temperature per row).
         check_charge : bool
             Refuse a composition that is not electrically neutral (default).
+        supercooled : bool
+            Also accept temperatures below 0 °C, down to ``T_LIQUID_MIN_C`` (-30 °C): the liquid
+            is then supercooled water (for freezing points). The Pitzer parameters are valid from
+            0 °C, so such results carry validity warnings.
 
         Returns
         -------
         ActivityResult
         """
         m, scalar, index = self._as_array(molalities)
-        self._check(m, temp_c, index, check_charge)
+        self._check(m, temp_c, index, check_charge, T_LIQUID_MIN_C if supercooled else T_MIN_C)
         t = np.asarray(temp_c, dtype=float)
         if t.ndim == 0:
             ln_g, osm, ln_aw, ion, g = self.compute(m, float(t))

@@ -12,10 +12,18 @@ A_phi (osmotic Debye–Hückel coefficient, molality scale; Pitzer 1991,
 
 The formulation is evaluated on a 1 K grid once and interpolated by a cubic
 spline (interpolation error below 1e-8, far under the formulation's own).
+
+Below 0 °C (freezing points only) the liquid is supercooled water: IAPWS-95 is stated by
+Wagner & Pruß (2002) to extrapolate reasonably into the metastable liquid, and the IAPWS 1997
+permittivity covers supercooled water from 238 K; A_phi is evaluated there down to
+``T_LIQUID_MIN_C`` on a spline of its own. The vapour pressure of pure water is that of the
+IAPWS-IF97 saturation line (Wagner et al. 2000, J. Eng. Gas Turbines Power 122, 150), through
+``iapws.IAPWS97(T=..., x=0)``.
 """
 
 from __future__ import annotations
 
+import math
 from functools import lru_cache
 
 import numpy as np
@@ -23,6 +31,8 @@ from scipy.interpolate import CubicSpline
 
 T_MIN_C = 0.0
 T_MAX_C = 150.0
+#: lowest temperature (°C) at which the liquid is evaluated: supercooled water, for freezing points only
+T_LIQUID_MIN_C = -30.0
 
 _NA = 6.02214076e23  # 1/mol, SI 2019 exact
 _E = 1.602176634e-19  # C, exact
@@ -68,6 +78,45 @@ def _aphi_spline() -> CubicSpline:
     return CubicSpline(grid, values)
 
 
+@lru_cache(maxsize=1)
+def _aphi_cold_spline() -> CubicSpline:
+    import warnings
+
+    grid = np.arange(T_LIQUID_MIN_C - 1.0, T_MIN_C + 2.0, 1.0)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")  # iapws says "Using extrapolated values" for the metastable liquid
+        values = np.array([aphi_exact(t) for t in grid])
+    return CubicSpline(grid, values)
+
+
 def aphi(temp_c):
-    """Debye–Hückel slope A_phi (kg/mol)^(1/2) at ``temp_c`` (°C), scalar or array."""
+    """Debye–Hückel slope A_phi (kg/mol)^(1/2) at ``temp_c`` (°C), scalar or array.
+
+    Temperatures below 0 °C (down to ``T_LIQUID_MIN_C``) are those of supercooled water.
+    """
+    t = np.asarray(temp_c, dtype=float)
+    if t.size and float(np.min(t)) < T_MIN_C - 0.5:
+        out = np.where(t < T_MIN_C, _aphi_cold_spline()(t), _aphi_spline()(t))
+        return out if t.ndim else float(out)
     return _aphi_spline()(temp_c)
+
+
+def saturation_pressure_kpa(temp_c: float) -> float:
+    """Vapour pressure of pure water (kPa) at ``temp_c`` (°C, 0 to 350), IAPWS-IF97 saturation line.
+
+    Raises
+    ------
+    RangeError
+        A temperature outside 0–350 °C (or not a number).
+    """
+    from iapws import IAPWS97
+
+    from phasekit.errors import RangeError
+
+    try:
+        t = float(temp_c)
+    except (TypeError, ValueError):
+        raise RangeError("temp_c", temp_c, "a temperature from 0 to 350 °C") from None
+    if not (math.isfinite(t) and 0.0 <= t <= 350.0):
+        raise RangeError("temp_c", temp_c, "a temperature from 0 to 350 °C")
+    return float(IAPWS97(T=t + 273.15, x=0).P) * 1000.0
