@@ -46,7 +46,7 @@ import numpy as np
 from scipy.optimize import brentq
 
 from phasekit.chemistry.species import M_WATER
-from phasekit.equilibrium.solver import EquilibriumState, _newton, _si, solve_robust
+from phasekit.equilibrium.solver import EquilibriumState, _newton, _si, solve, solve_robust
 from phasekit.errors import ConvergenceError, InputError, ValidityWarning
 
 DW_MAX = 0.03  # largest relative change of liquid water per step
@@ -128,12 +128,19 @@ class _Path:
         (t0, r0), (t1, r1) = self.nodes[seg], self.nodes[seg + 1]
         return t0 + u * (t1 - t0), r0 + u * (r1 - r0)
 
-    def _at(self, seg, u, base, warm):
+    def _at(self, seg, u, base, warm, robust=True):
+        """Full equilibrium at u: warm-started, with the continuation in water as fallback when
+        ``robust`` (the continuation is costly: a retried, shorter step goes without it)."""
         t, r = self._tr(seg, u)
         water = base["W"] - (r - base["r"])
         if water <= 0:
             raise _Dry()
-        st = solve_robust(self.model, base["b"], water, t, candidates=self.cands, warm=warm)
+        if robust or warm is None:
+            st = solve_robust(self.model, base["b"], water, t, candidates=self.cands, warm=warm)
+        else:
+            st = solve(self.model, base["b"], water, t, initial_active=warm.active, candidates=self.cands,
+                       m0=warm.m, w0=warm.w * water / max(warm.w + M_WATER * (warm.n @ self.model.solids.nw), 1e-300),
+                       n0=warm.n)
         return st, t, r, water
 
     def _fixed(self, seg, u, base, act, warm):
@@ -340,10 +347,10 @@ class _Path:
             du_r = DW_MAX * max(st.w, W_DRY) / (r1 - r0) if r1 > r0 else np.inf
             du = min(du_t, du_r, 1.0 - u)
             err = None
-            for _ in range(RETRIES + 1):
+            for attempt in range(RETRIES + 1):
                 u_new = u + du
                 try:
-                    st_new, t_new, r_new, water = self._at(seg, u_new, base, st)
+                    st_new, t_new, r_new, water = self._at(seg, u_new, base, st, robust=attempt == 0)
                     err = None
                     break
                 except (ConvergenceError, np.linalg.LinAlgError, FloatingPointError) as exc:
@@ -416,8 +423,12 @@ class _Path:
         m = self.model
         act = tuple(sorted(old))
         entering = set(new - old)
+        leaving = set(old - new)
         end_fix, t_end = self._fixed(seg, u1, base, act, st0)
         if end_fix is not None:
+            # a solid whose amount turns negative on the old assemblage's trajectory leaves (in
+            # fractional mode: at once, the harvested solid does not redissolve)
+            leaving |= {k for k in old if end_fix[2][k] < 0}
             si_end = _si(m, end_fix[0], t_end)
             allowed = set(range(len(m.solids.names))) if self.cands is None else set(self.cands)
             for k in np.flatnonzero(si_end > 0):
@@ -432,7 +443,7 @@ class _Path:
                     raise _NoFix()
                 return _si(m, sol[0], t)[k]
             cands.append((k, "appears", g))
-        for k in sorted(old - new):
+        for k in sorted(leaving):
             def h(u, k=k):
                 sol, t = self._fixed(seg, u, base, act, st0)
                 if sol is None:
