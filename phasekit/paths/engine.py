@@ -268,7 +268,7 @@ class _Path:
                 sol, t = self._fixed(seg, u, base, act, st0)
                 if sol is None:
                     raise _NoFix()
-                return self._ionic(sol[0], t) - self.i_max
+                return self._ionic(sol[0], t) - self.i_max * (1 - 1e-10)  # the root just inside
             try:
                 cands.append(brentq(f, u0, u1, xtol=1e-13, rtol=1e-12) if f(u0) < 0 else u0)
             except (_NoFix, ValueError):
@@ -288,11 +288,12 @@ class _Path:
         i_now = self._ionic(self.records[-1]["m"], self.records[-1]["t"])
         self.stop_reason = "validity limit"
         lo, hi = self._t_limits(self.records[-1]["m"])
-        if i_now >= self.i_max * (1 - 1e-9):
+        if i_now >= self.i_max * (1 - 1e-8):
             why = f"ionic strength {i_now:.4g} mol/kg reaches the database's limit {self.i_max:g} mol/kg"
         else:
             why = f"temperature leaves {lo:g}–{hi:g} °C, the range of the Pitzer parameters of the ions present"
-        self.end_text = f"validity limit: {why} (allow_beyond_validity=True continues, with warnings)"
+        self.end_text = (f"validity limit: {why} (allow_beyond_validity=True or --beyond-validity continues, "
+                         "with warnings)")
         raise _Stop()
 
     # -------------------------------------------------------------- march
@@ -314,7 +315,7 @@ class _Path:
                 self.stop_reason = "validity limit"
                 self.end_text = (f"validity limit: the brine's ionic strength {self._ionic(st.m, t):.4g} mol/kg is "
                                  f"above the database's limit {self.i_max:g} mol/kg "
-                                 "(allow_beyond_validity=True continues, with warnings)")
+                                 "(allow_beyond_validity=True or --beyond-validity continues, with warnings)")
                 raise _Stop()
             n0 = len(self.events)
             st = self._at_invariant(st, t, r, 0, n0)

@@ -103,9 +103,9 @@ def _result(model, path, mode, m0, temp0, exclude=(), allow_beyond_validity=Fals
     warns += model._validity(np.array([r["m"] for r in path.records]), steps["temp_c"].to_numpy(),
                              steps["ionic_strength"].to_numpy())
     if path.stop_reason == "validity limit":
-        warns.append(f"the path stops at the database's validity limit: {path.end_text}")
+        warns.append(f"the path stops at the {path.end_text}")
     elif path.stop_reason == "failure":
-        warns.append(f"partial path: {path.end_text}")
+        warns.append(f"partial path ({path.end_text})")
     return PathResult(events, steps, precipitated, path.end_text, mode, _density(model, m0, temp0), solution_mass,
                       masses, warns, getattr(model, "label", "embedded database"),
                       complete=path.stop_reason in COMPLETE, stop_reason=path.stop_reason, exclude=list(exclude),
