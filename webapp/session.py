@@ -87,6 +87,7 @@ def normalise(data) -> tuple[dict, list[str]]:
         "start_c": _text(p.get("start_c"), d["path"]["start_c"]),
         "end_c": _text(p.get("end_c"), d["path"]["end_c"]),
         "scale": _choice(p.get("scale"), ("linear", "log"), "linear"),
+        "exclude": _text(p.get("exclude"), ""),
     }
     q = data.get("polytherm") if isinstance(data.get("polytherm"), dict) else {}
     out["polytherm"] = {
@@ -101,6 +102,8 @@ def normalise(data) -> tuple[dict, list[str]]:
             ponds.append({"name": _text(r.get("name")), "temp_c": _text(r.get("temp_c")),
                           "end": _choice(r.get("end"), POND_ENDS, "until_saturated"), "value": _text(r.get("value"))})
     out["ponds"] = ponds[:20] if "ponds" in data else d["ponds"]
+    # solids kept out of the ponds (text as typed); an older file without the key keeps none out
+    out["ponds_exclude"] = _text(data.get("ponds_exclude"), "" if "ponds" in data else d.get("ponds_exclude", ""))
     c = data.get("conversion") if isinstance(data.get("conversion"), dict) else {}
     out["conversion"] = {k: _text(c.get(k), d["conversion"][k]) for k in CONVERSION_KEYS}
     out["database"], note = database.valid_choice(data.get("database"))
