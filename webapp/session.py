@@ -25,7 +25,7 @@ POND_ENDS = {
 #: the salts of the conversion view's feed (mol per kg water), in the order of its fields
 CONVERSION_SALTS = ("NaNO3", "KCl", "NaCl", "KNO3")
 #: the fields of the conversion view, kept as typed (the session's "conversion" entry)
-CONVERSION_KEYS = (*CONVERSION_SALTS, "hot_c", "cold_c", "dilution", "hot_solid", "cold_solid")
+CONVERSION_KEYS = (*CONVERSION_SALTS, "hot_c", "cold_c", "dilution", "hot_solid", "cold_solid", "exclude")
 #: an uploaded table of analyses larger than this (characters of JSON) is not kept in the browser
 #: (the check is in assets/clientside.js, collectInputs; browsers keep a few MB per site)
 MAX_KEPT_TABLE_CHARS = 1_500_000

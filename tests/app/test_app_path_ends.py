@@ -55,3 +55,14 @@ def test_partial_path_is_drawn_with_a_clear_sentence(page):
     expect(page.locator("#path-sentence")).to_contain_text("leaves the database's validity", timeout=30000)
     page.wait_for_selector("#path-graph .scatterlayer .trace")
     shot(page, "21-partial-path")
+
+
+def test_conversion_cycle_keeps_solids_out(page):
+    open_tab(page, "Conversion cycle")
+    expect(page.locator("#conv-sentence")).to_contain_text("harvested hot", timeout=60000)
+    type_in(page, "#conv-exclude", "sylvite")
+    page.click("#conv-run")
+    expect(page.locator("#conv-sentence")).to_contain_text("Kept out: sylvite", timeout=60000)
+    type_in(page, "#conv-exclude", "halite")
+    page.click("#conv-run")
+    expect(page.locator("#conv-msg")).to_contain_text("Solids kept out", timeout=60000)
