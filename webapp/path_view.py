@@ -42,7 +42,7 @@ def layout(inputs: dict) -> html.Div:
             html.Div([html.Label("Solids kept out", htmlFor="path-exclude",
                                  title="solids that do not form on the time scale of your process (comma separated)"),
                       dcc.Input(id="path-exclude", value=p.get("exclude", ""), type="text", debounce=True,
-                                placeholder="e.g. anhydrite, dolomite", className="pk-field")],
+                                placeholder="e.g. anhydrite, polyhalite", className="pk-field")],
                      className="pk-inline"),
             html.Div([html.Label("Mass axis"),
                       dcc.RadioItems(id="path-scale", value=p.get("scale", "linear"), inline=True, className="pk-radio",

@@ -142,7 +142,7 @@ def evaporate(brine, temp_c: float = 25.0, mode: str = "fractional", water_remov
     stop_when : callable, optional
         ``stop_when(path, state) -> bool``, checked after every step (used by pond trains).
     exclude : sequence of str, optional
-        Solids kept out of the path (e.g. ``["anhydrite", "dolomite"]``: solids that do not form on
+        Solids kept out of the path (e.g. ``["anhydrite", "polyhalite"]``: solids that do not form on
         the time scale of the process); recorded on the result.
     allow_beyond_validity : bool
         By default the path stops where the liquid leaves the database's validity (ionic strength
@@ -185,7 +185,7 @@ def cool(brine, start_c: float, end_c: float, mode: str = "equilibrium", model=N
     Parameters
     ----------
     exclude : sequence of str, optional
-        Solids kept out of the path (e.g. ``["anhydrite", "dolomite"]``: solids that do not form on
+        Solids kept out of the path (e.g. ``["anhydrite", "polyhalite"]``: solids that do not form on
         the time scale of the process); recorded on the result.
     allow_beyond_validity : bool
         By default the path stops where the liquid leaves the database's validity (ionic strength
@@ -220,7 +220,7 @@ def programme(brine, nodes, mode: str = "fractional", model=None, exclude=(),
     Parameters
     ----------
     exclude : sequence of str, optional
-        Solids kept out of the path (e.g. ``["anhydrite", "dolomite"]``: solids that do not form on
+        Solids kept out of the path (e.g. ``["anhydrite", "polyhalite"]``: solids that do not form on
         the time scale of the process); recorded on the result.
     allow_beyond_validity : bool
         By default the path stops where the liquid leaves the database's validity (ionic strength
