@@ -36,12 +36,14 @@ FIELDS = {
     "dilution": ("conv-dilution", "Water added before cooling", "'auto' or kg per kg feed water"),
     "hot_solid": ("conv-hot-solid", "Solid harvested hot", "mineral name or salt formula"),
     "cold_solid": ("conv-cold-solid", "Solid harvested cold", "mineral name or salt formula"),
+    "exclude": ("conv-exclude", "Solids kept out", "optional, comma separated: solids that do not form in your "
+                                                   "crystallizers"),
 }
 #: the ids of the fields, in the order of the session's keys (the order of collectInputs' arguments)
 IDS = [FIELDS[k][0] for k in CONVERSION_KEYS]
 #: the library's argument names (InputError.field) -> the field of this view
 LIB_FIELDS = {"hot_c": "hot_c", "cold_c": "cold_c", "dilution": "dilution", "hot_solid": "hot_solid",
-              "cold_solid": "cold_solid"}
+              "cold_solid": "cold_solid", "exclude": "exclude"}
 PER = "g per kg feed water"
 STAGE_TEXT = {"hot": "hot: evaporate, separate the hot crop", "dilution": "add water to the hot mother liquor",
               "cold": "cold: cool, separate the cold crop"}
@@ -67,7 +69,8 @@ def _field(key: str, value: str) -> html.Div:
     return html.Div([
         html.Label(text, htmlFor=fid),
         dcc.Input(id=fid, value=value, type="text", debounce=True, className="pk-field",
-                  inputMode="text" if key in ("dilution", "hot_solid", "cold_solid") else "decimal", **extra),
+                  inputMode="text" if key in ("dilution", "hot_solid", "cold_solid", "exclude") else "decimal",
+                  **extra),
         html.Div(hint, className="pk-hint"),
     ], className="pk-leach-field")
 
@@ -85,7 +88,8 @@ def layout(inputs: dict) -> html.Div:
         html.H3("Feed"),
         html.Div([_field(k, c[k]) for k in CONVERSION_SALTS], className="pk-leach-grid"),
         html.H3("Cycle"),
-        html.Div([_field(k, c[k]) for k in ("hot_c", "cold_c", "dilution", "hot_solid", "cold_solid")],
+        html.Div([_field(k, c.get(k, "")) for k in ("hot_c", "cold_c", "dilution", "hot_solid", "cold_solid",
+                                                     "exclude")],
                  className="pk-leach-grid"),
         html.Datalist([html.Option(value=s) for s in solids], id="conv-solids"),
         html.Div(html.Button("Run the cycle", id="conv-run", className="pk-btn"), className="pk-toolbar"),
@@ -174,17 +178,21 @@ def parse_inputs(values: dict, model) -> dict:
     cs = parse_solid(values.get("cold_solid"), "cold_solid", model)
     if hs == cs:
         raise InputError(label("cold_solid"), values.get("cold_solid"), f"a solid other than the hot one ({hs})")
+    from webapp.path_view import parse_exclude
+
+    excl = parse_exclude(values.get("exclude"), model, label("exclude"))
     return {"salts": {k: v for k, v in salts.items() if v > 0}, "hot_c": hot, "cold_c": cold, "hot_solid": hs,
-            "cold_solid": cs, "dilution": parse_dilution(values.get("dilution"))}
+            "cold_solid": cs, "dilution": parse_dilution(values.get("dilution")), "exclude": excl}
 
 
 # ----------------------------------------------------------------------------- the library
 @lru_cache(maxsize=32)
-def _cycle(salts: tuple, hot_c: float, cold_c: float, hot_solid: str, cold_solid: str, dilution, db_key: tuple):
+def _cycle(salts: tuple, hot_c: float, cold_c: float, hot_solid: str, cold_solid: str, dilution, db_key: tuple,
+           exclude: tuple = ()):
     model = database.model_by_key(db_key)
     feed = pk.Brine.from_salts(dict(salts), units="mol/kg")
     return feed, pk.hot_cold_cycle(feed, hot_c=hot_c, cold_c=cold_c, hot_solid=hot_solid, cold_solid=cold_solid,
-                                   dilution=dilution, model=model)
+                                   dilution=dilution, model=model, exclude=list(exclude))
 
 
 def run_cycle(args: dict, db=None):
@@ -194,7 +202,7 @@ def run_cycle(args: dict, db=None):
     database.model_for(db)
     try:
         return _cycle(tuple(sorted(args["salts"].items())), args["hot_c"], args["cold_c"], args["hot_solid"],
-                      args["cold_solid"], args["dilution"], database.key_of(db))
+                      args["cold_solid"], args["dilution"], database.key_of(db), tuple(args.get("exclude", ())))
     except InputError as exc:
         key = LIB_FIELDS.get(exc.field)
         expected = str(exc.expected).replace("at hot_c", "at the hot crystallizer's temperature")
@@ -221,6 +229,8 @@ def sentence(res, hot_solid: str, cold_solid: str) -> str:
             total = sum(crop.values())
             text += (f" The {stage} crop also holds " + ", ".join(f"{s} ({_grams(g)} g)" for s, g in others.items())
                      + f": {main} is {100 * crop.get(main, 0.0) / total:.0f} % of it.")
+    if getattr(res, "exclude", None):
+        text += f" Kept out: {', '.join(res.exclude)}."
     return text
 
 

@@ -39,6 +39,11 @@ def layout(inputs: dict) -> html.Div:
                       dcc.Input(id="cool-end", value=p["end_c"], type="text", debounce=True, inputMode="decimal",
                                 className="pk-field pk-field-short"), html.Span("°C")],
                      className="pk-inline", id="cool-fields"),
+            html.Div([html.Label("Solids kept out", htmlFor="path-exclude",
+                                 title="solids that do not form on the time scale of your process (comma separated)"),
+                      dcc.Input(id="path-exclude", value=p.get("exclude", ""), type="text", debounce=True,
+                                placeholder="e.g. anhydrite, polyhalite", className="pk-field")],
+                     className="pk-inline"),
             html.Div([html.Label("Mass axis"),
                       dcc.RadioItems(id="path-scale", value=p.get("scale", "linear"), inline=True, className="pk-radio",
                                      options=[{"label": "linear", "value": "linear"},
@@ -60,19 +65,46 @@ def layout(inputs: dict) -> html.Div:
 
 
 @lru_cache(maxsize=32)
-def _run(key: tuple, process: str, mode: str, temp_c: float, start_c: float, end_c: float, db_key: tuple):
+def _run(key: tuple, process: str, mode: str, temp_c: float, start_c: float, end_c: float, db_key: tuple,
+         exclude: tuple = ()):
     brine = pk.Brine(dict(key))
     model = database.model_by_key(db_key)
     if process == "evaporation":
-        return pk.evaporate(brine, temp_c=temp_c, mode=mode, model=model)
-    return pk.cool(brine, start_c=start_c, end_c=end_c, mode=mode, model=model)
+        return pk.evaporate(brine, temp_c=temp_c, mode=mode, model=model, exclude=list(exclude))
+    return pk.cool(brine, start_c=start_c, end_c=end_c, mode=mode, model=model, exclude=list(exclude))
 
 
-def run_path(molalities: dict, process: str, mode: str, temp_c: float, start_c=None, end_c=None, db=None):
+def parse_exclude(text, model=None, field: str = "solids kept out") -> tuple:
+    """Canonical names of the solids typed in a 'solids kept out' field (comma separated)."""
+    from phasekit.equilibrium.common import excluded_solids
+
+    model = model if model is not None else database.model_for(None)
+    items = [x for x in str(text or "").replace("+", ",").split(",") if x.strip()]
+    try:
+        return tuple(excluded_solids(model, items))
+    except InputError as exc:
+        raise InputError(field, exc.value, exc.expected) from None
+
+
+def run_path(molalities: dict, process: str, mode: str, temp_c: float, start_c=None, end_c=None, db=None,
+             exclude=()):
     """The library's path for this brine with the database ``db`` (cached for identical inputs)."""
     database.model_for(db)
     key = tuple(sorted((k, float(v)) for k, v in molalities.items()))
-    return _run(key, process, mode, float(temp_c), start_c, end_c, database.key_of(db))
+    return _run(key, process, mode, float(temp_c), start_c, end_c, database.key_of(db), tuple(exclude))
+
+
+def end_sentence(res) -> str:
+    """Why the path ended, in one sentence (a partial path says so first)."""
+    cf = float(res.steps["concentration_factor"].iloc[-1])
+    where = f"concentration factor {cf:.3g}, {float(res.steps['temp_c'].iloc[-1]):.3g} °C"
+    if res.stop_reason == "failure":
+        return (f"The path stopped before its end: the solver failed ({where}); what is shown is the part "
+                f"computed up to there. {res.end_point}")
+    if res.stop_reason == "validity limit":
+        return (f"The path stops where the brine leaves the database's validity ({where}); what is shown is the "
+                f"part the model can answer for. {res.end_point}")
+    return f" The path ends at: {res.end_point} ({where})."
 
 
 def first_solid_sentence(res, process: str, start_c=None) -> str:
@@ -102,13 +134,13 @@ def masses(res) -> pd.DataFrame:
 
 
 def _events_view(ev: pd.DataFrame) -> pd.DataFrame:
-    return pd.DataFrame({"solid": ev["solid"], "event": ev["event"],
+    return pd.DataFrame({"solid": ev["solid"], "event": ev["event"], "point": ev["point"],
                          "concentration factor": ev["concentration_factor"],
                          "water evaporated (%)": 100 * ev["water_removed_fraction"],
                          "temperature (°C)": ev["temp_c"]})
 
 
-def update_path(brine, temp_c, process, mode, start_text, end_text, scale="linear", db=None):
+def update_path(brine, temp_c, process, mode, start_text, end_text, scale="linear", db=None, exclude_text=""):
     """Callback: run the path with the database chosen and draw it (the previous result is kept on any error)."""
     keep = (no_update,) * 6
     if not brine:
@@ -120,8 +152,9 @@ def update_path(brine, temp_c, process, mode, start_text, end_text, scale="linea
             end = parse_temperature(end_text, "cooling to")
             if end >= start:
                 raise InputError("cooling to", end_text, f"a temperature below the start, {start:g} °C")
-        res = run_path(brine["molalities"], process, mode, float(temp_c), start, end, db)
         model = database.model_for(db)
+        excl = parse_exclude(exclude_text, model)
+        res = run_path(brine["molalities"], process, mode, float(temp_c), start, end, db, excl)
     except PhasekitError as exc:
         text = messages.describe(exc)
         if "electrically neutral" in text:
@@ -153,20 +186,28 @@ def _present(res, brine, process, mode, temp_c, start, scale):
                           log_x=process == "evaporation", log_y=scale == "log")
     fig["layout"]["yaxis"]["title"]["text"] = y_title
     sentence = first_solid_sentence(res, process, start)
-    end_cf = float(steps["concentration_factor"].iloc[-1])
-    sentence += f" The path ends at: {res.end_point} (concentration factor {end_cf:.3g})."
+    if res.complete:
+        sentence += end_sentence(res)
+    else:
+        sentence = end_sentence(res) + " " + sentence
+    if res.exclude:
+        sentence += f" Kept out: {', '.join(res.exclude)}."
     summary = res.summary().reset_index()
     species = [c for c in steps.columns if c in brine["molalities"]]
     step_cols = ["water_removed_fraction", "concentration_factor", "temp_c", "liquid_water_kg", *species,
                  "water_activity", "ionic_strength", "density_kg_per_l", "solids"]
     steps_export = steps[step_cols].rename(columns={s: f"{s}_mol_per_kg_water" for s in species})
     steps_export = pd.concat([steps_export, m.add_suffix("_g_per_kg_initial_brine")], axis=1)
+    steps_export["stop_reason"] = res.stop_reason
+    steps_export["exclude"] = "+".join(res.exclude)
     events_export = ev.rename(columns={s: f"{s}_mol_per_kg_water" for s in species})
     store = {
         "process": process, "mode": mode, "first": res.first_solid, "end_point": res.end_point,
+        "complete": res.complete, "stop_reason": res.stop_reason, "exclude": list(res.exclude),
         "sentence": sentence,
         "steps": stored(steps[["water_removed_fraction", "concentration_factor", "temp_c", *species]]),
-        "events": stored(ev[["solid", "event", "concentration_factor", "water_removed_fraction", "temp_c", *species]]),
+        "events": stored(ev[["solid", "event", "point", "concentration_factor", "water_removed_fraction", "temp_c",
+                             *species]]),
         "tables": {"events": stored(events_export), "summary": stored(summary), "steps": stored(steps_export)},
     }
     events_table = table(_events_view(ev), id="path-events-table", digits={"temperature (°C)": 3})
@@ -183,4 +224,4 @@ def register(app):
                  Output("path-msg", "children"), Output("path-db", "children"),
                  Input("brine", "data"), Input("temp-c", "data"), Input("path-process", "value"),
                  Input("path-mode", "value"), Input("cool-start", "value"), Input("cool-end", "value"),
-                 Input("path-scale", "value"), Input("database", "data"))(update_path)
+                 Input("path-scale", "value"), Input("database", "data"), Input("path-exclude", "value"))(update_path)

@@ -47,6 +47,12 @@ def layout(inputs: dict) -> html.Div:
         html.Div([html.Span("pond"), html.Span("°C"), html.Span("end condition"), html.Span("value")],
                  className="pk-row pk-row-head pk-pond-row"),
         html.Div(rows_children(inputs["ponds"]), id="pond-rows"),
+        html.Div([html.Label("Solids kept out", htmlFor="pond-exclude",
+                                 title="solids that do not form in the ponds on their time scale (comma separated): "
+                                 "anhydrite, for one, where the ponds give gypsum"),
+                  dcc.Input(id="pond-exclude", value=inputs.get("ponds_exclude", ""), type="text", debounce=True,
+                            placeholder="e.g. anhydrite", className="pk-field")],
+                 className="pk-inline"),
         html.Div([html.Button("+ add pond", id="pond-add", className="pk-btn pk-btn-small"),
                   html.Button("Run the pond train", id="pond-run", className="pk-btn")], className="pk-toolbar"),
         html.Div(id="pond-msg", **{"aria-live": "polite"}),
@@ -100,12 +106,12 @@ def parse_ponds(rows: list[dict], model=None) -> list:
     return out
 
 
-def run_train(molalities: dict, ponds: list, model=None):
+def run_train(molalities: dict, ponds: list, model=None, exclude=()):
     """The library's pond train on this brine (with ``model``, the embedded database by default)."""
-    return pk.pond_train(pk.Brine(molalities), ponds, model=model)
+    return pk.pond_train(pk.Brine(molalities), ponds, model=model, exclude=list(exclude))
 
 
-def update_ponds(_run, tab, brine, db, names, temps, ends, values):
+def update_ponds(_run, tab, brine, db, names, temps, ends, values, exclude_text=""):
     """Callback: run the pond train with the database chosen (when the view is shown; previous result kept
     on any error)."""
     if tab != "ponds":
@@ -117,7 +123,10 @@ def update_ponds(_run, tab, brine, db, names, temps, ends, values):
     try:
         model = database.model_for(db)
         ponds = parse_ponds(rows, model)
-        res = run_train(brine["molalities"], ponds, model)
+        from webapp.path_view import parse_exclude
+
+        excl = parse_exclude(exclude_text, model)
+        res = run_train(brine["molalities"], ponds, model, excl)
     except PhasekitError as exc:
         text = messages.describe(exc)
         if "electrically neutral" in text:
@@ -151,9 +160,21 @@ def update_ponds(_run, tab, brine, db, names, temps, ends, values):
         out_rows.append(row)
     outflow = pd.DataFrame(out_rows)
     unreached = [p.name for p in ponds if p.name not in res.paths]
-    note = (messages.note(f"The brine dried up before: {', '.join(unreached)}.") if unreached else None)
+    if not res.complete:
+        last = res.ponds["pond"].iloc[-1]
+        why = ("the brine reached the database's validity limit" if res.stop_reason == "validity limit"
+               else "the solver failed")
+        note = messages.note(f"The train stopped in {last}: {why}; the ponds after it ({', '.join(unreached)}) were "
+                             "not run. What is shown is the part computed up to there." if unreached else
+                             f"The last pond, {last}, stopped before its end condition: {why}.")
+    else:
+        note = (messages.note(f"The brine dried up before: {', '.join(unreached)}.") if unreached else None)
+    if res.exclude:
+        note = html.Div([note, messages.note(f"Kept out of every pond: {', '.join(res.exclude)}.")])
+    pond_view["exclude"] = "+".join(res.exclude)
     store = {"tables": {"ponds": stored(pond_view), "harvest": stored(hv), "outflow": stored(outflow)},
-             "database": model.label}
+             "database": model.label, "exclude": list(res.exclude), "complete": res.complete,
+             "stop_reason": res.stop_reason}
     summary = [table(pond_view, id="pond-summary-table"), note]
     return (summary, fig, table(hv, id="pond-harvest-table"), table(outflow, id="pond-outflow-table", digits={}),
             store, None, database.label_line(model, id="pond-db-label"))
@@ -178,10 +199,11 @@ def edit_rows(_add, _dels, names, temps, ends, values):
 
 def register(app):
     fields = [State({"type": t, "row": ALL}, "value") for t in ("pond-name", "pond-temp", "pond-end", "pond-value")]
+    exclude = State("pond-exclude", "value")
     app.callback(Output("pond-summary", "children"), Output("pond-graph", "figure"),
                  Output("pond-harvest", "children"), Output("pond-outflow", "children"), Output("res-ponds", "data"),
                  Output("pond-msg", "children"), Output("pond-db", "children"),
                  Input("pond-run", "n_clicks"), Input("views", "value"), Input("brine", "data"), Input("database", "data"),
-                 *[Input(f.component_id, f.component_property) for f in fields])(update_ponds)
+                 *[Input(f.component_id, f.component_property) for f in (*fields, exclude)])(update_ponds)
     app.callback(Output("pond-rows", "children", allow_duplicate=True), Input("pond-add", "n_clicks"),
                  Input({"type": "pond-del", "row": ALL}, "n_clicks"), *fields, prevent_initial_call=True)(edit_rows)

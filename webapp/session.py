@@ -26,7 +26,7 @@ POND_ENDS = {
 #: the salts of the conversion view's feed (mol per kg water), in the order of its fields
 CONVERSION_SALTS = ("NaNO3", "KCl", "NaCl", "KNO3")
 #: the fields of the conversion view, kept as typed (the session's "conversion" entry)
-CONVERSION_KEYS = (*CONVERSION_SALTS, "hot_c", "cold_c", "dilution", "hot_solid", "cold_solid")
+CONVERSION_KEYS = (*CONVERSION_SALTS, "hot_c", "cold_c", "dilution", "hot_solid", "cold_solid", "exclude")
 #: an uploaded table of analyses larger than this (characters of JSON) is not kept in the browser
 #: (the check is in assets/clientside.js, collectInputs; browsers keep a few MB per site)
 MAX_KEPT_TABLE_CHARS = 1_500_000
@@ -91,6 +91,7 @@ def normalise(data) -> tuple[dict, list[str]]:
         "start_c": _text(p.get("start_c"), d["path"]["start_c"]),
         "end_c": _text(p.get("end_c"), d["path"]["end_c"]),
         "scale": _choice(p.get("scale"), ("linear", "log"), "linear"),
+        "exclude": _text(p.get("exclude"), ""),
     }
     q = data.get("polytherm") if isinstance(data.get("polytherm"), dict) else {}
     out["polytherm"] = {
@@ -105,6 +106,8 @@ def normalise(data) -> tuple[dict, list[str]]:
             ponds.append({"name": _text(r.get("name")), "temp_c": _text(r.get("temp_c")),
                           "end": _choice(r.get("end"), POND_ENDS, "until_saturated"), "value": _text(r.get("value"))})
     out["ponds"] = ponds[:20] if "ponds" in data else d["ponds"]
+    # solids kept out of the ponds (text as typed); an older file without the key keeps none out
+    out["ponds_exclude"] = _text(data.get("ponds_exclude"), "" if "ponds" in data else d.get("ponds_exclude", ""))
     c = data.get("conversion") if isinstance(data.get("conversion"), dict) else {}
     out["conversion"] = {k: _text(c.get(k), d["conversion"][k]) for k in CONVERSION_KEYS}
     out["database"], note = database.valid_choice(data.get("database"))

@@ -50,7 +50,8 @@ def restore(request):
               b["name"], b["units"], b["density"], b["rows"], b["balance_on"],
               inputs["analyses"], p["process"], p["mode"], p["start_c"], p["end_c"], p["scale"],
               q["t_min_c"], q["t_max_c"], q["basis"], inputs["ponds"],
-              *[inputs["conversion"][k] for k in CONVERSION_KEYS]]
+              *[inputs["conversion"][k] for k in CONVERSION_KEYS], p.get("exclude", ""),
+              inputs.get("ponds_exclude", "")]
     if request.get("boot"):
         # the page was built with the demo inputs: send only what differs (the page renders faster)
         values = [no_update if v == d else v for v, d in zip(values, _fields(demo_session()))]
@@ -71,7 +72,8 @@ def _fields(inputs: dict) -> list:
     return [inputs["system"], inputs["temp_c"], parse_temperature(inputs["temp_c"]), inputs["coordinates"],
             inputs["basis"], b["name"], b["units"], b["density"], b["rows"], b["balance_on"], inputs["analyses"],
             p["process"], p["mode"], p["start_c"], p["end_c"], p["scale"], q["t_min_c"], q["t_max_c"], q["basis"],
-            inputs["ponds"], *[inputs["conversion"][k] for k in CONVERSION_KEYS]]
+            inputs["ponds"], *[inputs["conversion"][k] for k in CONVERSION_KEYS], p.get("exclude", ""),
+            inputs.get("ponds_exclude", "")]
 
 
 def load_file(checked):
@@ -114,7 +116,8 @@ def register(app):
         Input("path-mode", "value"), Input("cool-start", "value"), Input("cool-end", "value"),
         Input("path-scale", "value"), Input("poly-tmin", "value"), Input("poly-tmax", "value"),
         Input("poly-basis", "value"), Input("db-choice", "value"), Input("db-upload", "data"),
-        *[Input(i, "value") for i in conversion_view.IDS], *pond,
+        *[Input(i, "value") for i in conversion_view.IDS], *pond, Input("path-exclude", "value"),
+        Input("pond-exclude", "value"),
         prevent_initial_call=True,
     )
     app.callback(
@@ -126,7 +129,8 @@ def register(app):
         Output("path-mode", "value"), Output("cool-start", "value"), Output("cool-end", "value"),
         Output("path-scale", "value"), Output("poly-tmin", "value"), Output("poly-tmax", "value"), Output("poly-basis", "value"),
         Output("pond-rows", "children", allow_duplicate=True),
-        *[Output(i, "value") for i in conversion_view.IDS],
+        *[Output(i, "value") for i in conversion_view.IDS], Output("path-exclude", "value"),
+        Output("pond-exclude", "value"),
         Output("db-choice", "options", allow_duplicate=True), Output("db-choice", "value", allow_duplicate=True),
         Output("db-upload", "data", allow_duplicate=True), Output(STORE_ID, "data", allow_duplicate=True),
         Output("session-msg", "children"),

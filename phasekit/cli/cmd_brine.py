@@ -13,13 +13,15 @@ def _head(brine, temp_c) -> dict:
 
 def _saturation(args) -> c.Report:
     (brine,) = c.read_brines(args)
-    table = c.model_of(args).saturation(brine, args.temp)
+    excl = [x.strip() for x in str(args.exclude or "").split(",") if x.strip()]
+    table = c.model_of(args).saturation(brine, args.temp, exclude=excl)
     order = {"supersaturated": 0, "saturated": 1, "undersaturated": 2}
     if args.sort:
         table = table.sort_values("saturation_index", ascending=False)
     scalars = _head(brine, args.temp)
     scalars["supersaturated"] = [s for s, st in table["state"].items() if order[st] == 0]
     scalars["saturated"] = [s for s, st in table["state"].items() if order[st] == 1]
+    scalars["exclude"] = list(table.attrs.get("exclude", []))
     return c.Report(scalars=scalars, tables={"saturation": table, "brine": c.brine_table(brine)}, main="saturation",
                     warnings=list(table.attrs.get("warnings", [])))
 
@@ -46,8 +48,11 @@ def equilibrium_report(model, res, scalars: dict, extra: dict | None = None) -> 
 def _equilibrate(args) -> c.Report:
     (brine,) = c.read_brines(args)
     model = c.model_of(args)
-    res = model.equilibrate(brine, args.temp)
-    return equilibrium_report(model, res, _head(brine, args.temp))
+    excl = [x.strip() for x in str(args.exclude or "").split(",") if x.strip()]
+    res = model.equilibrate(brine, args.temp, exclude=excl, allow_beyond_validity=args.beyond_validity)
+    head = _head(brine, args.temp)
+    head.update({"exclude": list(res.exclude), "beyond_validity": bool(args.beyond_validity)})
+    return equilibrium_report(model, res, head)
 
 
 def register(sub) -> None:
@@ -60,6 +65,7 @@ def register(sub) -> None:
     c.add_brine_options(p)
     c.add_temp(p)
     c.add_overlay_option(p)
+    c.add_path_options(p, beyond=False)
     p.add_argument("--sort", action="store_true", help="sort by saturation index, highest first")
     c.add_output_options(p, tables=("saturation", "brine"))
     p.set_defaults(func=_saturation)
@@ -72,5 +78,6 @@ def register(sub) -> None:
     c.add_brine_options(p)
     c.add_temp(p)
     c.add_overlay_option(p)
+    c.add_path_options(p)
     c.add_output_options(p, tables=("solids", "liquid", "saturation"))
     p.set_defaults(func=_equilibrate)

@@ -10,10 +10,24 @@ from phasekit.errors import InputError
 PATH_TABLES = ("steps", "events", "summary", "precipitated")
 
 
+def _excl(args) -> list:
+    return [x.strip() for x in str(getattr(args, "exclude", "") or "").split(",") if x.strip()]
+
+
+def _partial(rep: c.Report, complete: bool, reason: str) -> c.Report:
+    if not complete:
+        rep.exit_code = c.EXIT_PARTIAL
+        rep.stop_note = (f"stopped before its end ({reason}, see the warning above); the rows computed up to there "
+                         "are written")
+    return rep
+
+
 def _path_report(res, scalars: dict, x: str, title: str) -> c.Report:
     first = res.first_solid
     scalars = dict(scalars)
-    scalars.update({"mode": res.mode, "end_point": res.end_point,
+    scalars.update({"mode": res.mode, "complete": res.complete, "stop_reason": res.stop_reason,
+                    "end_point": res.end_point, "exclude": list(res.exclude),
+                    "beyond_validity": res.allow_beyond_validity,
                     "first_solid": first["solid"] if first else None,
                     "first_solid_concentration_factor": first["concentration_factor"] if first else None,
                     "first_solid_temp_c": first["temp_c"] if first else None})
@@ -29,7 +43,7 @@ def _path_report(res, scalars: dict, x: str, title: str) -> c.Report:
         path_figure(res, x, path, title)
 
     rep.draw = draw
-    return rep
+    return _partial(rep, res.complete, res.stop_reason)
 
 
 def _evaporate(args) -> c.Report:
@@ -37,7 +51,8 @@ def _evaporate(args) -> c.Report:
 
     (brine,) = c.read_brines(args)
     res = pk.evaporate(brine, temp_c=args.temp, mode=args.mode, water_removed=args.water_removed,
-                       concentration_factor=args.cf, model=c.model_of(args))
+                       concentration_factor=args.cf, model=c.model_of(args), exclude=_excl(args),
+                       allow_beyond_validity=args.beyond_validity)
     return _path_report(res, {"temp_c": args.temp}, "concentration_factor",
                         f"Isothermal evaporation at {args.temp:g} °C ({args.mode})")
 
@@ -46,7 +61,8 @@ def _cool(args) -> c.Report:
     import phasekit as pk
 
     (brine,) = c.read_brines(args)
-    res = pk.cool(brine, start_c=args.start, end_c=args.end, mode=args.mode, model=c.model_of(args))
+    res = pk.cool(brine, start_c=args.start, end_c=args.end, mode=args.mode, model=c.model_of(args),
+                  exclude=_excl(args), allow_beyond_validity=args.beyond_validity)
     verb = "Cooling" if args.end < args.start else "Heating"
     return _path_report(res, {"start_c": args.start, "end_c": args.end}, "temp_c",
                         f"{verb} from {args.start:g} to {args.end:g} °C ({args.mode})")
@@ -136,11 +152,15 @@ def _ponds(args) -> c.Report:
     if bool(args.pond) == bool(args.ponds):
         raise InputError("--pond", None, "the ponds: --pond '...' once per pond, or --ponds FILE.csv (not both)")
     ponds = [parse_pond(t, i) for i, t in enumerate(args.pond)] if args.pond else read_ponds_file(args.ponds)
-    res = pk.pond_train(brine, [pk.Pond(**p) for p in ponds], model=c.model_of(args))
-    scalars = {"ponds": [p["name"] for p in ponds], "outflow_charge_balance_percent": res.outflow.charge_balance()}
-    return c.Report(scalars=scalars, tables={"ponds": res.ponds, "harvest": res.harvest,
-                                             "outflow": c.brine_table(res.outflow)}, main="ponds",
-                    warnings=[w for p in res.paths.values() for w in p.warnings])
+    res = pk.pond_train(brine, [pk.Pond(**p) for p in ponds], model=c.model_of(args), exclude=_excl(args),
+                        allow_beyond_validity=args.beyond_validity)
+    scalars = {"ponds": [p["name"] for p in ponds], "complete": res.complete, "stop_reason": res.stop_reason,
+               "exclude": list(res.exclude), "beyond_validity": bool(args.beyond_validity),
+               "outflow_charge_balance_percent": res.outflow.charge_balance()}
+    rep = c.Report(scalars=scalars, tables={"ponds": res.ponds, "harvest": res.harvest,
+                                            "outflow": c.brine_table(res.outflow)}, main="ponds",
+                   warnings=list(res.warnings))
+    return _partial(rep, res.complete, res.stop_reason)
 
 
 def _dilution(text: str):
@@ -157,13 +177,15 @@ def _convert(args) -> c.Report:
 
     (feed,) = c.read_brines(args)
     res = pk.hot_cold_cycle(feed, hot_c=args.hot, cold_c=args.cold, hot_solid=args.hot_solid,
-                            cold_solid=args.cold_solid, dilution=_dilution(args.dilution), model=c.model_of(args))
+                            cold_solid=args.cold_solid, dilution=_dilution(args.dilution), model=c.model_of(args),
+                            exclude=_excl(args), allow_beyond_validity=args.beyond_validity)
     st = res.stages.set_index("stage")
     scalars = {"hot_c": args.hot, "cold_c": args.cold,
                "water_evaporated_kg": float(st.loc["hot", "water_kg"]),
                "water_added_kg": float(-st.loc["dilution", "water_kg"]),
                "hot_solid": st.loc["hot", "main_solid"], "hot_purity": float(st.loc["hot", "purity"]),
                "cold_solid": st.loc["cold", "main_solid"], "cold_purity": float(st.loc["cold", "purity"]),
+               "exclude": list(res.exclude), "beyond_validity": bool(args.beyond_validity),
                **{f"yield_{ion}": v for ion, v in res.yields.items()}}
     crops = pd.DataFrame([{"stage": stage, "solid": s, "grams": g}
                           for stage, crop in (("hot", res.hot_solids), ("cold", res.cold_solids))
@@ -189,6 +211,7 @@ def register(sub) -> None:
     p.add_argument("--water-removed", type=float, default=1.0, metavar="FRACTION",
                    help="largest fraction of the initial water to evaporate (default 1: to the end point)")
     p.add_argument("--cf", type=float, metavar="CF", help="stop at this concentration factor")
+    c.add_path_options(p)
     c.add_overlay_option(p)
     c.add_output_options(p, plot=True, tables=PATH_TABLES)
     p.set_defaults(func=_evaporate)
@@ -203,6 +226,7 @@ def register(sub) -> None:
     c.add_temp(p, None, "--end", "final temperature, °C")
     p.add_argument("--mode", choices=("equilibrium", "fractional"), default="equilibrium",
                    help="equilibrium (solids stay, default) or fractional (harvested as they form)")
+    c.add_path_options(p)
     c.add_overlay_option(p)
     c.add_output_options(p, plot=True, tables=PATH_TABLES)
     p.set_defaults(func=_cool)
@@ -233,6 +257,7 @@ def register(sub) -> None:
     p.add_argument("--pond", action="append", metavar="SPEC",
                    help="one pond: 'name=...;temp=°C;cf=...|water_removed=...|until=SOLID[+SOLID][;mode=...]'")
     p.add_argument("--ponds", metavar="FILE", help="a CSV of ponds, one per row, in order")
+    c.add_path_options(p)
     c.add_overlay_option(p)
     c.add_output_options(p, tables=("ponds", "harvest", "outflow"))
     p.set_defaults(func=_ponds)
@@ -245,7 +270,7 @@ def register(sub) -> None:
                      "with purities, yields and the recycle liquor.",
                      ["phasekit convert --salts NaNO3=6.0,KCl=4.0 --units mol/kg --hot 75 --cold 20",
                       "phasekit convert --salts NaNO3=6.0,KCl=4.0 --units mol/kg --hot 90 --cold 15 --dilution 0.1 "
-                      "--format json"])
+                      "--beyond-validity --format json"])
     c.add_brine_options(p)
     c.add_temp(p, 75.0, "--hot", "temperature of the evaporating crystallizer, °C")
     c.add_temp(p, 20.0, "--cold", "temperature of the cooling crystallizer, °C")
@@ -254,6 +279,7 @@ def register(sub) -> None:
     p.add_argument("--dilution", default="auto", metavar="auto|KG",
                    help="water added before cooling, kg per kg of feed water (default auto: the least that keeps "
                    "the hot solid dissolved)")
+    c.add_path_options(p)
     c.add_overlay_option(p)
     c.add_output_options(p, tables=("stages", "crops", "liquors"))
     p.set_defaults(func=_convert)

@@ -33,11 +33,15 @@ EXIT_CONVERGENCE = 3
 EXIT_UNAVAILABLE = 4
 #: an unexpected internal error (a bug: please report it with the command line)
 EXIT_INTERNAL = 5
+#: a path (or pond train) stopped before its end: a solver failure or the database's validity
+#: limit; the rows computed up to there are written
+EXIT_PARTIAL = 6
 
 EXIT_CODES_TEXT = (
     "exit codes: 0 success; 1 batch finished but some rows failed (kept in the output, marked); "
     "2 usage or input error; 3 a solver did not converge; 4 capability not available in this "
-    "installation; 5 internal error (a bug)"
+    "installation; 5 internal error (a bug); 6 a path or pond train stopped before its end (solver failure or "
+    "validity limit: the rows computed are written, the reason is on stderr and in stop_reason)"
 )
 
 UNITS_HELP = "units of the analysis: mg/kg, g/kg, mass%% (per kg of solution), mg/L, g/L (per litre), mol/kg (per kg water)"
@@ -110,6 +114,19 @@ def add_overlay_option(p) -> None:
     g.add_argument("--overlay", action="append", metavar="FILE",
                    help="a database overlay (TOML of your own fitted values, see phasekit.overlay) applied on top "
                    "of the embedded database; repeat for several (overlays in conflict are refused)")
+
+
+def add_path_options(p, exclude: bool = True, beyond: bool = True) -> None:
+    """--exclude SOLID[,SOLID] and --beyond-validity (paths, ponds, cycles, equilibria)."""
+    g = p.add_argument_group("solids and validity")
+    if exclude:
+        g.add_argument("--exclude", default="", metavar="SOLID[,SOLID]",
+                       help="solids kept out (e.g. anhydrite,polyhalite: solids that do not form on the time scale "
+                       "of the process)")
+    if beyond:
+        g.add_argument("--beyond-validity", action="store_true",
+                       help="go on past the database's validity limit (ionic strength, parameter temperature "
+                       "ranges), with warnings; by default the computation stops there and says so")
 
 
 def model_of(args):
@@ -298,6 +315,8 @@ class Report:
     draw: Callable | None = None  # draw(path) writes the figure
     show: list | None = None  # tables shown in the readable format (default: all)
     table_columns: dict = field(default_factory=dict)  # columns shown in the readable format
+    exit_code: int = 0  # EXIT_PARTIAL for a path that stopped before its end (the report is still written)
+    stop_note: str = ""  # why, printed on stderr
 
 
 def _plain(v):
@@ -372,8 +391,10 @@ def emit(report: Report, args) -> None:
             df = pd.DataFrame([{k: _plain(v) for k, v in report.scalars.items()}])
         else:
             df = report.tables[name]
-            if "database" in report.scalars and "database" not in df.columns:
-                df = df.assign(database=report.scalars["database"])  # csv has no other place for it
+            for key in ("database", "exclude"):  # csv has no other place for them
+                if key in report.scalars and key not in df.columns:
+                    v = report.scalars[key]
+                    df = df.assign(**{key: "+".join(v) if isinstance(v, list | tuple) else v})
         keep_index = df.index.name is not None or not isinstance(df.index, pd.RangeIndex)
         payload = df.to_csv(index=keep_index, float_format=None)
     elif fmt == "json":

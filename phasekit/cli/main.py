@@ -122,7 +122,7 @@ def main(argv: list[str] | None = None) -> int:
                     report.scalars.setdefault("database", c.model_of(args).label)
                 report.warnings = list(dict.fromkeys(list(args.notes) + list(report.warnings)))
                 c.emit(report, args)
-                code = c.EXIT_OK
+                code = report.exit_code or c.EXIT_OK
     except ConvergenceError as err:
         code = c.EXIT_CONVERGENCE
         _warnings_out(command, caught, args.notes)
@@ -148,6 +148,8 @@ def main(argv: list[str] | None = None) -> int:
         return c.EXIT_INTERNAL
     extra = list(report.warnings) if report is not None else list(args.notes)
     _warnings_out(command, caught, extra)
+    if report is not None and report.stop_note:
+        _say(command, "partial result", report.stop_note)
     return code
 
 

@@ -95,7 +95,7 @@ def _amount_to_saturation(model, m0: np.ndarray, temp_c: float, si0: np.ndarray)
     return x
 
 
-def saturation(model, brine, temp_c: float, amounts: bool | None = None) -> pd.DataFrame:
+def saturation(model, brine, temp_c: float, amounts: bool | None = None, exclude=()) -> pd.DataFrame:
     """Saturation state of a brine (or of many) with respect to every solid.
 
     Parameters
@@ -107,6 +107,8 @@ def saturation(model, brine, temp_c: float, amounts: bool | None = None) -> pd.D
     amounts : bool, optional
         Also compute the amount of each solid that could dissolve or must crystallize
         (default: yes for one brine, no for a DataFrame).
+    exclude : sequence of str, optional
+        Solids left out of the table (kept out of a process); recorded in ``.attrs["exclude"]``.
 
     Returns
     -------
@@ -117,6 +119,9 @@ def saturation(model, brine, temp_c: float, amounts: bool | None = None) -> pd.D
         saturation index per solid (states with :func:`states`).
         ``.attrs["warnings"]`` lists validity warnings.
     """
+    from phasekit.equilibrium.common import excluded_solids
+
+    excl = excluded_solids(model, exclude)
     if isinstance(brine, pd.DataFrame):
         m = frame_array(model, brine)
         model._check(m, temp_c, brine.index)
@@ -124,6 +129,8 @@ def saturation(model, brine, temp_c: float, amounts: bool | None = None) -> pd.D
             warnings.simplefilter("ignore", ValidityWarning)
             si = saturation_indices(model, m, float(temp_c))
         out = pd.DataFrame(si, index=brine.index, columns=model.solids.names)
+        out = out.drop(columns=excl)
+        out.attrs["exclude"] = excl
         out.attrs["warnings"] = model._validity(m, temp_c, np.zeros(1))
         out.attrs["database"] = getattr(model, "label", "embedded database")
         if amounts:
@@ -140,7 +147,7 @@ def saturation(model, brine, temp_c: float, amounts: bool | None = None) -> pd.D
     rng = model.solids.t_range
     for k, name in enumerate(model.solids.names):
         # only for solids near or above saturation, where the value matters
-        if np.isfinite(si[k]) and si[k] > -0.5 and not (rng[k, 0] <= temp_c <= rng[k, 1]):
+        if np.isfinite(si[k]) and si[k] > -0.5 and not (rng[k, 0] <= temp_c <= rng[k, 1]) and name not in excl:
             warns.append(f"{name}: {temp_c:g} °C outside the validity range {rng[k, 0]:g}–{rng[k, 1]:g} °C "
                          "of its solubility product")
     for w in warns:
@@ -156,7 +163,8 @@ def saturation(model, brine, temp_c: float, amounts: bool | None = None) -> pd.D
         masses = np.array([_solid_mass(s) for s in model.solids.solids])
         out["dissolvable_mol_per_kg_water"] = xi
         out["dissolvable_g_per_kg_water"] = xi * masses
-    out = out[np.isfinite(out["saturation_index"])]
+    out = out[np.isfinite(out["saturation_index"]) & ~out.index.isin(excl)]
+    out.attrs["exclude"] = excl
     out.attrs["warnings"] = warns
     out.attrs["database"] = getattr(model, "label", "embedded database")
     return out

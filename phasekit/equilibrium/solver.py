@@ -31,7 +31,7 @@ import pandas as pd
 
 from phasekit.chemistry.species import M_WATER
 from phasekit.equilibrium.common import composition_array, make_brine
-from phasekit.errors import ConvergenceError, InputError, ValidityWarning, warn_validity
+from phasekit.errors import ConvergenceError, InputError, RangeError, ValidityWarning, warn_validity
 
 LN10 = np.log(10.0)
 TOL_BALANCE = 1e-12  # relative mass-balance residual at convergence
@@ -72,6 +72,8 @@ class EquilibriumResult:
     converged : dict
         iterations, active_set_changes, mass_balance_residual, mass_action_residual, method.
     warnings : list of str
+    exclude : list of str
+        Solids kept out of the equilibrium.
     """
 
     solids: dict
@@ -82,6 +84,7 @@ class EquilibriumResult:
     converged: dict
     warnings: list = field(default_factory=list)
     database: str = "embedded database"
+    exclude: list = field(default_factory=list)
 
     def solids_mass_g(self, model=None) -> dict:
         """Mass of each solid in g per kg of initial water."""
@@ -365,8 +368,39 @@ def solve_robust(model, b, water, temp_c, candidates=None, warm: EquilibriumStat
     return state
 
 
+def _dilute_start(model, b, water, temp_c, candidates):
+    """Equilibrium reached by continuation from a dilute, undersaturated brine (the branch of the
+    activity model's solutions connected to dilute brines)."""
+    factor = 1.0
+    for _ in range(60):
+        factor *= 2.0
+        m = np.where(b > 0, b / (water * factor), 0.0)
+        s = _si(model, m, temp_c)
+        if np.nanmax(np.where(np.isfinite(s), s, -np.inf)) < 0:
+            break
+    state = solve(model, b, water * factor, temp_c, candidates=candidates)
+    log_f = np.log(factor)
+    pos, step = log_f, log_f / 8.0
+    while pos > 0:
+        nxt = max(pos - step, 0.0)
+        try:
+            state = solve(model, b, water * np.exp(nxt), temp_c, initial_active=state.active,
+                          candidates=candidates, m0=state.m, w0=state.w * np.exp(nxt - pos), n0=state.n)
+            pos = nxt
+            step = min(step * 1.5, log_f / 4.0)
+        except ConvergenceError:
+            step /= 2.0
+            if step < 1e-6:
+                raise
+    return state
+
+
+def _ionic_strength(model, m, temp_c) -> float:
+    return float(model.compute(m[None, :], temp_c)[3][0])
+
+
 def equilibrate(model, brine, temp_c: float, add_solids: dict | None = None, initial_solids=(),
-                exclude=()) -> EquilibriumResult:
+                exclude=(), allow_beyond_validity: bool = False) -> EquilibriumResult:
     """Stable assemblage of a brine (plus optionally added solids) at ``temp_c``.
 
     Parameters
@@ -380,7 +414,14 @@ def equilibrate(model, brine, temp_c: float, add_solids: dict | None = None, ini
     initial_solids : sequence of str
         Solids to start the active set from (the answer does not depend on it).
     exclude : sequence of str
-        Solids not allowed to form (metastable equilibria).
+        Solids not allowed to form (metastable equilibria, or solids that do not form on the time
+        scale of the process); recorded in ``.exclude``.
+    allow_beyond_validity : bool
+        The activity model has further, unphysical solutions far above its validity limit. By
+        default an answer whose liquid lies above the database's ionic-strength limit is first
+        sought again from a dilute brine (continuation in the water amount), and if the liquid is
+        still above the limit a RangeError names its ionic strength. True returns such an answer,
+        with the warning in ``.warnings``.
 
     Returns
     -------
@@ -402,7 +443,10 @@ def equilibrate(model, brine, temp_c: float, add_solids: dict | None = None, ini
         water += model.solids.nw[k] * amt * M_WATER
     if not np.any(b > 0):
         raise InputError("brine", dict(zip(model.species, m0.tolist())), "at least one dissolved species")
-    excl = {model.solids.index[model.solids.resolve(s)] for s in exclude}
+    from phasekit.equilibrium.common import excluded_solids
+
+    excl_names = excluded_solids(model, exclude)
+    excl = {model.solids.index[s] for s in excl_names}
     cands = [k for k in range(len(model.solids.names)) if k not in excl]
     init = [model.solids.index[model.solids.resolve(s)] for s in initial_solids]
     with warnings.catch_warnings():
@@ -415,7 +459,24 @@ def equilibrate(model, brine, temp_c: float, add_solids: dict | None = None, ini
                 st = solve_robust(model, b, water, float(temp_c), candidates=cands)
         else:
             st = solve_robust(model, b, water, float(temp_c), candidates=cands)
-    return result_from_state(model, st, float(temp_c))
+        i_max = float(model.db.ionic_strength_max)
+        if _ionic_strength(model, st.m, float(temp_c)) > i_max and not allow_beyond_validity:
+            try:
+                again = _dilute_start(model, b, water, float(temp_c), cands)
+            except ConvergenceError:
+                again = None
+            if again is not None and _ionic_strength(model, again.m, float(temp_c)) <= i_max:
+                st = again
+            else:
+                raise RangeError(
+                    "ionic strength of the equilibrium liquid",
+                    round(_ionic_strength(model, st.m, float(temp_c)), 4),
+                    f"an equilibrium within the database's validity limit of {i_max:g} mol/kg; none was found "
+                    "below it (the mixture may hold too little water for its hydrates, past its drying point); "
+                    "allow_beyond_validity=True / --beyond-validity returns this answer anyway, with warnings")
+    res = result_from_state(model, st, float(temp_c))
+    res.exclude = list(excl_names)
+    return res
 
 
 def result_from_state(model, st: EquilibriumState, temp_c: float, water_basis: float = 1.0) -> EquilibriumResult:

@@ -32,7 +32,7 @@ import numpy as np
 import pandas as pd
 from scipy.optimize import brentq
 
-from phasekit.equilibrium.common import composition_array
+from phasekit.equilibrium.common import composition_array, excluded_solids
 from phasekit.equilibrium.saturation import _solid_mass
 from phasekit.equilibrium.solver import solve_robust
 from phasekit.errors import ConvergenceError, InputError, RangeError, ValidityWarning
@@ -66,6 +66,8 @@ class CycleResult:
     database : str
         Database the cycle was computed with.
     warnings : list of str
+    exclude : list of str
+        Solids kept out of the cycle.
     """
 
     stages: pd.DataFrame
@@ -78,6 +80,7 @@ class CycleResult:
     yields: dict
     database: str = "embedded database"
     warnings: list = field(default_factory=list)
+    exclude: list = field(default_factory=list)
 
 
 def _state(model, b, water, t, exclude=()):
@@ -100,7 +103,8 @@ def _purity(crop: dict) -> tuple:
 
 
 def hot_cold_cycle(feed, hot_c: float = 90.0, cold_c: float = 20.0, hot_solid: str = "halite",
-                   cold_solid: str = "niter", dilution="auto", model=None) -> CycleResult:
+                   cold_solid: str = "niter", dilution="auto", model=None, exclude=(),
+                   allow_beyond_validity: bool = False) -> CycleResult:
     """One hot/cold cycle of a conversion process (see the module description).
 
     Parameters
@@ -115,6 +119,11 @@ def hot_cold_cycle(feed, hot_c: float = 90.0, cold_c: float = 20.0, hot_solid: s
     dilution : "auto" or float
         Water added to the hot mother liquor before cooling, kg per kg of feed water; "auto" adds
         the least that keeps ``hot_solid`` dissolved at ``cold_c``.
+    exclude : sequence of str
+        Solids kept out of every stage (recorded on the result); not the hot or the cold solid.
+    allow_beyond_validity : bool
+        By default a cycle whose hot or cold liquor lies above the database's ionic-strength limit
+        is refused (RangeError naming the ionic strength); True computes it, with warnings.
 
     Returns
     -------
@@ -134,6 +143,10 @@ def hot_cold_cycle(feed, hot_c: float = 90.0, cold_c: float = 20.0, hot_solid: s
     if hs == cs:
         raise InputError("cold_solid", cold_solid, f"a solid other than the hot solid ({hs})")
     k_hs, k_cs = model.solids.index[hs], model.solids.index[cs]
+    excl = tuple(excluded_solids(model, exclude))
+    for name in (hs, cs):
+        if name in excl:
+            raise InputError("exclude", name, f"solids other than the hot and the cold solid ({hs}, {cs})")
     rng = model.solids.t_range
     for field_name, t, ks in (("hot_c", th, (k_hs, k_cs)), ("cold_c", tc, (k_cs,))):
         for k in ks:
@@ -150,7 +163,7 @@ def hot_cold_cycle(feed, hot_c: float = 90.0, cold_c: float = 20.0, hot_solid: s
         warnings.simplefilter("always", ValidityWarning)
         # 1. hot stage: water left at which the cold solid saturates
         def cold_si_hot(w):
-            return float(_state(model, m0, w, th, exclude=(cs,)).si[k_cs])
+            return float(_state(model, m0, w, th, exclude=(cs, *excl)).si[k_cs])
 
         if cold_si_hot(1.0) >= 0:
             raise InputError("feed", "saturated with " + cs + f" at {th:g} °C",
@@ -163,13 +176,13 @@ def hot_cold_cycle(feed, hot_c: float = 90.0, cold_c: float = 20.0, hot_solid: s
                                  f"a feed from which {cs} can crystallize")
             hi, lo = lo, max(lo * STEP, W_MIN)
         w_hot = brentq(cold_si_hot, lo, hi, xtol=1e-10, rtol=1e-10)
-        hot = _state(model, m0, w_hot, th, exclude=(cs,))
+        hot = _state(model, m0, w_hot, th, exclude=(cs, *excl))
         hot_solids = _crop(model, hot)
         b = hot.m * hot.w  # mother liquor, mol
 
         # 2. dilution: least water that keeps the hot solid dissolved at the cold temperature
         def hot_si_cold(add):
-            return float(_state(model, b, hot.w + add, tc, exclude=(hs,)).si[k_hs])
+            return float(_state(model, b, hot.w + add, tc, exclude=(hs, *excl)).si[k_hs])
 
         if dilution == "auto":
             add = 0.0
@@ -188,10 +201,16 @@ def hot_cold_cycle(feed, hot_c: float = 90.0, cold_c: float = 20.0, hot_solid: s
             if not np.isfinite(add) or add < 0:
                 raise InputError("dilution", dilution, "'auto' or kg of water per kg of feed water (>= 0)")
         # 3. cold stage
-        cold = _state(model, b, hot.w + add, tc)
+        cold = _state(model, b, hot.w + add, tc, exclude=excl)
     notes += [str(w.message) for w in caught if issubclass(w.category, ValidityWarning)]
-    for st, t in ((hot, th), (cold, tc)):
+    i_max = float(model.db.ionic_strength_max)
+    for st, t, label in ((hot, th, "hot liquor"), (cold, tc, "cold liquor")):
         ion = model.compute(st.m[None, :], t)[3]
+        if ion[0] > i_max and not allow_beyond_validity:
+            raise RangeError(f"ionic strength of the {label}", round(float(ion[0]), 4),
+                             f"a cycle whose liquors stay within the database's validity limit of {i_max:g} mol/kg "
+                             "(a lower hot temperature, a larger dilution, or allow_beyond_validity=True / "
+                             "--beyond-validity to compute it anyway, with warnings)")
         notes += model._validity(st.m[None, :], t, ion)
     notes = list(dict.fromkeys(notes))
     if not cold.n[k_cs] > 0:
@@ -217,4 +236,4 @@ def hot_cold_cycle(feed, hot_c: float = 90.0, cold_c: float = 20.0, hot_solid: s
     liquor = {s: float(v) for s, v in zip(model.species, hot.m) if v > 0}
     recycle = {s: float(v) for s, v in zip(model.species, cold.m) if v > 0}
     return CycleResult(stages, hot_solids, cold_solids, liquor, float(hot.w), recycle, float(cold.w), yields,
-                       getattr(model, "label", "embedded database"), notes)
+                       getattr(model, "label", "embedded database"), notes, list(excl))

@@ -9,10 +9,10 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
-from phasekit.equilibrium.common import composition_array
+from phasekit.equilibrium.common import candidate_indices, composition_array, excluded_solids
 from phasekit.equilibrium.saturation import _solid_mass
 from phasekit.errors import InputError, RangeError
-from phasekit.paths.engine import run_programme
+from phasekit.paths.engine import COMPLETE, run_programme
 from phasekit.paths.result import PathResult
 from phasekit.thermo.water import T_MAX_C, T_MIN_C
 from phasekit.validate import is_number, number
@@ -65,7 +65,7 @@ def _density(model, m, temp_c):
         return float("nan")
 
 
-def _result(model, path, end, mode, m0, temp0):
+def _result(model, path, mode, m0, temp0, exclude=(), allow_beyond_validity=False):
     names = model.solids.names
     rows, prec = [], []
     for rec in path.records:
@@ -88,12 +88,13 @@ def _result(model, path, end, mode, m0, temp0):
     precipitated = precipitated[used]
     ev = []
     for e in path.events:
-        row = {"solid": e["solid"], "event": e["event"], "concentration_factor": 1.0 / e["w"],
+        row = {"solid": e["solid"], "event": e["event"], "point": e.get("point", ""),
+               "concentration_factor": 1.0 / e["w"],
                "water_removed_fraction": e["r"], "temp_c": e["t"]}
         row.update({s: v for s, v in zip(model.species, e["m"]) if s in present})
         ev.append(row)
-    events = pd.DataFrame(ev, columns=["solid", "event", "concentration_factor", "water_removed_fraction", "temp_c",
-                                       *present])
+    events = pd.DataFrame(ev, columns=["solid", "event", "point", "concentration_factor", "water_removed_fraction",
+                                       "temp_c", *present])
     solution_mass = 1.0 + float(sum(v * sp for v, sp in zip(m0, _species_masses(model)))) / 1000.0
     masses = {n: _solid_mass(model.solids[n]) for n in used}
     warns = []
@@ -106,8 +107,14 @@ def _result(model, path, end, mode, m0, temp0):
                          f"{rng[k, 0]:g}–{rng[k, 1]:g} °C of its solubility product")
     warns += model._validity(np.array([r["m"] for r in path.records]), steps["temp_c"].to_numpy(),
                              steps["ionic_strength"].to_numpy())
-    return PathResult(events, steps, precipitated, end, mode, _density(model, m0, temp0), solution_mass, masses,
-                      warns, getattr(model, "label", "embedded database"))
+    if path.stop_reason == "validity limit":
+        warns.append(f"the path stops at the {path.end_text}")
+    elif path.stop_reason == "failure":
+        warns.append(f"partial path ({path.end_text})")
+    return PathResult(events, steps, precipitated, path.end_text, mode, _density(model, m0, temp0), solution_mass,
+                      masses, warns, getattr(model, "label", "embedded database"),
+                      complete=path.stop_reason in COMPLETE, stop_reason=path.stop_reason, exclude=list(exclude),
+                      allow_beyond_validity=bool(allow_beyond_validity))
 
 
 def _species_masses(model):
@@ -116,8 +123,14 @@ def _species_masses(model):
     return [SPECIES[s].molar_mass for s in model.species]
 
 
+def _exclusion(model, exclude):
+    names = excluded_solids(model, exclude)
+    return names, candidate_indices(model, names)
+
+
 def evaporate(brine, temp_c: float = 25.0, mode: str = "fractional", water_removed: float = 1.0,
-              concentration_factor: float | None = None, stop_when=None, model=None) -> PathResult:
+              concentration_factor: float | None = None, stop_when=None, model=None, exclude=(),
+              allow_beyond_validity: bool = False) -> PathResult:
     """Isothermal evaporation of a brine to its end point.
 
     Parameters
@@ -128,58 +141,91 @@ def evaporate(brine, temp_c: float = 25.0, mode: str = "fractional", water_remov
         Fractional: solids are harvested as they form; equilibrium: they stay and may react.
     water_removed : float
         Largest fraction of the initial water to evaporate (default: all; the path stops at
-        the invariant brine or the drying point first).
+        its eutonic or drying point first; transition points are passed).
     concentration_factor : float, optional
         Stop when the liquid reaches this concentration factor instead.
     stop_when : callable, optional
         ``stop_when(path, state) -> bool``, checked after every step (used by pond trains).
+    exclude : sequence of str, optional
+        Solids kept out of the path (e.g. ``["anhydrite", "polyhalite"]``: solids that do not form on
+        the time scale of the process); recorded on the result.
+    allow_beyond_validity : bool
+        By default the path stops where the liquid leaves the database's validity (ionic strength
+        above its limit, or a temperature outside the range of a Pitzer parameter of the ions
+        present), with ``stop_reason`` "validity limit"; True continues, with warnings.
 
     Returns
     -------
     PathResult
+        ``.complete`` is False when the path stopped early (``stop_reason`` "failure" or
+        "validity limit"); the rows computed up to there are kept.
     """
     model = _model(model)
     t = _temp(temp_c, "temp_c")
     f = _fraction(water_removed, "water_removed")
     m0 = _initial(model, brine)
+    excl, cands = _exclusion(model, exclude)
     cond = stop_when
     if concentration_factor is not None:
         cf = number("concentration_factor", concentration_factor, "a number >= 1", lo=1.0)
 
         def cond(path, st, cf=cf, inner=stop_when):
             return 1.0 / st.w >= cf or (inner is not None and inner(path, st))
-    path, end = run_programme(model, m0, 1.0, [(t, 0.0), (t, f)], mode, cond)
-    return _result(model, path, end, mode, m0, t)
+    path = run_programme(model, m0, 1.0, [(t, 0.0), (t, f)], mode, cond, cands, allow_beyond_validity)
+    return _result(model, path, mode, m0, t, excl, allow_beyond_validity)
 
 
-def cool(brine, start_c: float, end_c: float, mode: str = "equilibrium", model=None) -> PathResult:
+def cool(brine, start_c: float, end_c: float, mode: str = "equilibrium", model=None, exclude=(),
+         allow_beyond_validity: bool = False) -> PathResult:
     """Cooling (or heating, when ``end_c > start_c``) of a brine at fixed water.
 
     The brine is first equilibrated at ``start_c``; solids that form stay in equilibrium mode
     and are harvested in fractional mode.
+
+    Parameters
+    ----------
+    exclude : sequence of str, optional
+        Solids kept out of the path (e.g. ``["anhydrite", "polyhalite"]``: solids that do not form on
+        the time scale of the process); recorded on the result.
+    allow_beyond_validity : bool
+        By default the path stops where the liquid leaves the database's validity (ionic strength
+        above its limit, or a temperature outside the range of a Pitzer parameter of the ions
+        present), with ``stop_reason`` "validity limit"; True continues, with warnings.
     """
     model = _model(model)
     t0, t1 = _temp(start_c, "start_c"), _temp(end_c, "end_c")
     if t0 == t1:
         raise InputError("end_c", end_c, f"a temperature different from start_c = {t0:g} °C")
     m0 = _initial(model, brine)
-    path, end = run_programme(model, m0, 1.0, [(t0, 0.0), (t1, 0.0)], mode, None)
-    if end.startswith("invariant"):
-        end = "end of the programme"
-    return _result(model, path, end, mode, m0, t0)
+    excl, cands = _exclusion(model, exclude)
+    path = run_programme(model, m0, 1.0, [(t0, 0.0), (t1, 0.0)], mode, None, cands, allow_beyond_validity)
+    return _result(model, path, mode, m0, t0, excl, allow_beyond_validity)
 
 
-def heat(brine, start_c: float, end_c: float, mode: str = "equilibrium", model=None) -> PathResult:
+def heat(brine, start_c: float, end_c: float, mode: str = "equilibrium", model=None, exclude=(),
+         allow_beyond_validity: bool = False) -> PathResult:
     """Heating of a brine at fixed water (see :func:`cool`)."""
     if float(end_c) <= float(start_c):
         raise InputError("end_c", end_c, f"a temperature above start_c = {start_c}")
-    return cool(brine, start_c, end_c, mode, model)
+    return cool(brine, start_c, end_c, mode, model, exclude, allow_beyond_validity)
 
 
-def programme(brine, nodes, mode: str = "fractional", model=None) -> PathResult:
+def programme(brine, nodes, mode: str = "fractional", model=None, exclude=(),
+              allow_beyond_validity: bool = False) -> PathResult:
     """A path through a programme of (temp_c, water_removed_fraction) nodes, linear between them.
 
-    E.g. a day–night pond: ``[(30, 0), (15, 0.05), (30, 0.10), (15, 0.15)]``.
+    E.g. a day–night pond: ``[(30, 0), (15, 0.05), (30, 0.10), (15, 0.15)]``. Invariant points
+    are classified on its isothermal evaporating segments only.
+
+    Parameters
+    ----------
+    exclude : sequence of str, optional
+        Solids kept out of the path (e.g. ``["anhydrite", "polyhalite"]``: solids that do not form on
+        the time scale of the process); recorded on the result.
+    allow_beyond_validity : bool
+        By default the path stops where the liquid leaves the database's validity (ionic strength
+        above its limit, or a temperature outside the range of a Pitzer parameter of the ions
+        present), with ``stop_reason`` "validity limit"; True continues, with warnings.
     """
     model = _model(model)
     if not nodes or len(nodes) < 2:
@@ -198,5 +244,6 @@ def programme(brine, nodes, mode: str = "fractional", model=None) -> PathResult:
         last = r
         clean.append((t, r))
     m0 = _initial(model, brine)
-    path, end = run_programme(model, m0, 1.0, clean, mode, None)
-    return _result(model, path, end, mode, m0, clean[0][0])
+    excl, cands = _exclusion(model, exclude)
+    path = run_programme(model, m0, 1.0, clean, mode, None, cands, allow_beyond_validity)
+    return _result(model, path, mode, m0, clean[0][0], excl, allow_beyond_validity)

@@ -8,12 +8,12 @@ the brine at the end condition is passed to the next pond.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 import pandas as pd
 
-from phasekit.equilibrium.common import make_brine
+from phasekit.equilibrium.common import candidate_indices, excluded_solids, make_brine
 from phasekit.equilibrium.saturation import LN10
 from phasekit.errors import InputError
 from phasekit.paths.engine import run_programme
@@ -59,20 +59,40 @@ class PondTrainResult:
         Pond name -> PathResult.
     outflow : Brine
         The brine leaving the last pond.
+    complete : bool
+        False when a pond's path stopped early (solver failure, or the validity limit of the
+        database): the train stops at that pond, whose partial path is kept.
+    stop_reason : str
+        "end of train", or the stop reason of the pond that stopped the train early.
+    exclude : list of str
+        Solids kept out of every pond.
+    warnings : list of str
     """
 
     harvest: pd.DataFrame
     ponds: pd.DataFrame
     paths: dict
     outflow: object
+    complete: bool = True
+    stop_reason: str = "end of train"
+    exclude: list = field(default_factory=list)
+    warnings: list = field(default_factory=list)
 
 
-def pond_train(brine, ponds: list, model=None) -> PondTrainResult:
-    """Run a train of ponds on a brine; amounts per kg of the first pond's inflow water."""
+def pond_train(brine, ponds: list, model=None, exclude=(), allow_beyond_validity: bool = False) -> PondTrainResult:
+    """Run a train of ponds on a brine; amounts per kg of the first pond's inflow water.
+
+    ``exclude``: solids kept out of every pond (e.g. anhydrite, which does not form in solar
+    ponds on their time scale: gypsum does). ``allow_beyond_validity``: by default a pond whose
+    brine reaches the database's validity limit stops there, and so does the train.
+    """
     model = _model(model)
     if not ponds:
         raise InputError("ponds", ponds, "at least one pond")
     m = _initial(model, brine)
+    excl = excluded_solids(model, exclude)
+    cands = candidate_indices(model, excl)
+    train_complete, train_reason, warns = True, "end of train", []
     water = 1.0  # kg of the train's initial water carried by the current brine
     harvest_rows, pond_rows, paths = [], [], {}
     for i, p in enumerate(ponds):
@@ -102,14 +122,19 @@ def pond_train(brine, ponds: list, model=None) -> PondTrainResult:
         else:
             names = [p.until_saturated] if isinstance(p.until_saturated, str) else list(p.until_saturated)
             idx = [model.solids.index[model.solids.resolve(n)] for n in names]
+            for n in names:
+                if model.solids.resolve(n) in excl:
+                    raise InputError(f"ponds[{i}].until_saturated", n, "a solid that is not excluded")
 
             def stop(path, st, idx=idx):
                 return any(k in st.active or st.si[k] > -1e-9 / LN10 for k in idx)
         if p.mode not in ("equilibrium", "fractional"):
             raise InputError(f"ponds[{i}].mode", p.mode, "'equilibrium' or 'fractional'")
-        path, end = run_programme(model, m, 1.0, [(t, 0.0), (t, frac)], p.mode, stop)
-        res = _result(model, path, end, p.mode, m, t)
+        path = run_programme(model, m, 1.0, [(t, 0.0), (t, frac)], p.mode, stop, cands, allow_beyond_validity)
+        res = _result(model, path, p.mode, m, t, excl, allow_beyond_validity)
+        end = res.end_point
         paths[p.name] = res
+        warns += [f"{p.name}: {w}" for w in res.warnings]
         last = path.records[-1]
         amounts = last["amounts"] * water
         masses = {n: model.solids[n] for n in model.solids.names}
@@ -126,10 +151,17 @@ def pond_train(brine, ponds: list, model=None) -> PondTrainResult:
                           "evaporated_kg": water * (last["r"]), "concentration_factor": cf_out,
                           "cumulative_concentration_factor": 1.0 / (water * last["w"]),
                           "harvest_g": total, "main_solid": main,
-                          "purity": g[main] / total if g else np.nan, "end": end})
+                          "purity": g[main] / total if g else np.nan, "stop_reason": res.stop_reason,
+                          "end": end})
         water = water * last["w"]
         m = last["m"]
+        if not res.complete:
+            train_complete, train_reason = False, res.stop_reason
+            if i < len(ponds) - 1:
+                warns.append(f"the train stops at pond {p.name} ({res.stop_reason}); the ponds after it are not run")
+            break
         if last["w"] <= 1e-6:
             break
     harvest = pd.DataFrame(harvest_rows, columns=["pond", "solid", "mol", "g", "purity"])
-    return PondTrainResult(harvest, pd.DataFrame(pond_rows), paths, make_brine(model, m))
+    return PondTrainResult(harvest, pd.DataFrame(pond_rows), paths, make_brine(model, m), train_complete,
+                           train_reason, excl, list(dict.fromkeys(warns)))

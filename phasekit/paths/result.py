@@ -15,21 +15,35 @@ class PathResult:
     Attributes
     ----------
     events : pandas.DataFrame
-        One row per phase change: ``solid``, ``event`` ("appears" | "disappears"),
-        ``concentration_factor``, ``water_removed_fraction``, ``temp_c``, and the brine
-        composition at that point.
+        One row per phase change: ``solid``, ``event`` ("appears" | "disappears"), ``point``
+        ("transition point" or "eutonic" where the change happens at an invariant point of an
+        isothermal evaporation, else empty), ``concentration_factor``, ``water_removed_fraction``,
+        ``temp_c``, and the brine composition at that point.
     steps : pandas.DataFrame
         One row per step: ``water_removed_fraction``, ``concentration_factor``, ``temp_c``,
         ``liquid_water_kg`` (per kg of initial water), molality of each species,
         ``water_activity``, ``ionic_strength``, ``density_kg_per_l`` (NaN where the density
-        model does not reach), ``solids`` (names present, "+"-joined).
+        model does not reach), ``solids`` (the solids in equilibrium with the liquid at that row,
+        "+"-joined; at an event row, the assemblage the path goes on with, except that a solid
+        leaving a transition point in fractional mode is still listed).
     precipitated : pandas.DataFrame
         Aligned with ``steps``: mol of each solid per kg of initial water — cumulative harvest
         in fractional mode, amount present in equilibrium mode.
     end_point : str
-        Why the path stopped.
+        Why the path stopped, in words.
     mode : str
     warnings : list of str
+    complete : bool
+        False when the path stopped before its end: the solver failed (``stop_reason``
+        "failure") or the liquid reached the database's validity limit ("validity limit"); the
+        rows computed up to there are kept.
+    stop_reason : str
+        One of "eutonic", "drying point", "end of programme", "end condition",
+        "validity limit", "failure".
+    exclude : list of str
+        Solids kept out of the path.
+    allow_beyond_validity : bool
+        Whether the path was allowed past the validity limit.
     """
 
     events: pd.DataFrame
@@ -42,6 +56,10 @@ class PathResult:
     solid_masses: dict = field(default_factory=dict)
     warnings: list = field(default_factory=list)
     database: str = "embedded database"
+    complete: bool = True
+    stop_reason: str = "end of programme"
+    exclude: list = field(default_factory=list)
+    allow_beyond_validity: bool = False
 
     @property
     def first_solid(self) -> dict | None:

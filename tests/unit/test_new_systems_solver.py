@@ -36,7 +36,9 @@ def test_random_brines_converge_and_conserve_mass(model, make):
         try:
             with warnings.catch_warnings():
                 warnings.simplefilter("ignore")
-                r = model.equilibrate(pk.Brine(comp), t)
+                # convergence and mass balance are tested here, also above the ionic-strength limit
+                # (hot nitrate brines pass it): the answer is returned there with its warning
+                r = model.equilibrate(pk.Brine(comp), t, allow_beyond_validity=True)
         except ConvergenceError:
             continue  # a clear error is allowed; any other exception fails the test
         ok += 1

@@ -34,7 +34,8 @@ window.dash_clientside = Object.assign({}, window.dash_clientside, {
         collectInputs: function (system, tempText, coords, basis, name, units, density, ions, vals, balanceOn,
                                  analyses, process, mode, start, end, scale, tmin, tmax, pbasis,
                                  dbChoice, dbUpload, cNaNO3, cKCl, cNaCl, cKNO3, cHot, cCold, cDilution,
-                                 cHotSolid, cColdSolid, pnames, ptemps, pends, pvalues) {
+                                 cHotSolid, cColdSolid, cExclude, pnames, ptemps, pends, pvalues, pathExclude,
+                                 pondExclude) {
             var keep = analyses && JSON.stringify(analyses).length <= 1500000 ? analyses : null;
             var rows = ions.map(function (ion, i) { return {ion: ion || '', value: vals[i] || ''}; });
             var ponds = pnames.map(function (n, i) {
@@ -45,13 +46,15 @@ window.dash_clientside = Object.assign({}, window.dash_clientside, {
                 basis: basis,
                 brine: {name: name || '', units: units, density: density || '', balance_on: balanceOn, rows: rows},
                 analyses: keep,
-                path: {process: process, mode: mode, start_c: start || '', end_c: end || '', scale: scale},
+                path: {process: process, mode: mode, start_c: start || '', end_c: end || '', scale: scale,
+                       exclude: pathExclude || ''},
                 polytherm: {t_min_c: tmin || '', t_max_c: tmax || '', basis: pbasis},
                 ponds: ponds,
+                ponds_exclude: pondExclude || '',
                 // the conversion view's fields, as typed (webapp/session.py CONVERSION_KEYS)
                 conversion: {NaNO3: cNaNO3 || '', KCl: cKCl || '', NaCl: cNaCl || '', KNO3: cKNO3 || '',
                              hot_c: cHot || '', cold_c: cCold || '', dilution: cDilution || '',
-                             hot_solid: cHotSolid || '', cold_solid: cColdSolid || ''},
+                             hot_solid: cHotSolid || '', cold_solid: cColdSolid || '', exclude: cExclude || ''},
                 // the database chosen; an uploaded overlay is kept with its text (at most 64 kB)
                 database: {choice: dbChoice, upload: dbChoice === 'upload' ? (dbUpload || null) : null}
             };
