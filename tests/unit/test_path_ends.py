@@ -374,7 +374,8 @@ def test_demo_concentrator_harvests_gypsum_with_anhydrite_kept_out():
     res = _quiet(pk.pond_train, brine, ponds, exclude=excl)
     assert res.exclude == ["anhydrite"] and res.complete
     conc = res.ponds.set_index("pond").loc["Sandpiper concentrators"]
-    assert conc["main_solid"] == "gypsum" and conc["purity"] == pytest.approx(1.0)
+    # gypsum is the main crop; at 30 °C glauberite (whose ln K now has a temperature function) joins it
+    assert conc["main_solid"] == "gypsum" and conc["purity"] > 0.5
     assert "anhydrite" not in set(res.harvest["solid"])
     plain = _quiet(pk.pond_train, brine, ponds)
     assert plain.ponds.set_index("pond").loc["Sandpiper concentrators", "main_solid"] != "gypsum"
