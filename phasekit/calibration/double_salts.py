@@ -26,7 +26,6 @@ from phasekit.calibration.regress import RegressionResult, regress
 from phasekit.data_files import data_dir
 from phasekit.errors import InputError
 from phasekit.fitting import with_parameters
-from phasekit.thermo import tempfn
 
 COEFS = ("a1", "a2", "a3", "a4")
 
@@ -171,7 +170,3 @@ def fit_double_salts(model, settings: dict | None = None, measurements: pd.DataF
         sources[solid] = text
     return DoubleSaltFit(estimate, coeffs, ranges, reg, sources, model, notes)
 
-
-def ln_k_change(coeffs, temp_c) -> float:
-    """ln K(T) - ln K(25 °C) of a coefficient row (a0..a4)."""
-    return float(np.asarray(coeffs)[1:] @ tempfn.basis(temp_c + 273.15)[1:])

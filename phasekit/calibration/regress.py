@@ -9,8 +9,9 @@ Every role=fit row of the reference set (:mod:`phasekit.calibration.measurements
 
 ln IAP, ln a_w and φ of the Pitzer model are linear in every coefficient of the temperature functions of
 β0, β1, β2, C^φ, θ and ψ (the E-θ terms do not depend on them), and ln K is linear in its own coefficients,
-so the fit of all selected coefficients together is one weighted linear least-squares problem, solved
-exactly (no iteration, no starting values): running it twice gives the same numbers. Each residual is
+so the fit of all selected coefficients together is one weighted linear least-squares problem (exactly
+linear for ln a_w and φ; for the saturation conditions up to the scaling slope, taken at the present values),
+solved in one step with no starting guess: running it twice gives the same numbers. Each residual is
 divided by its standard uncertainty (the measurement's stated one where the file gives a relative one,
 otherwise the default of its kind below), and each fitted coefficient has a Gaussian prior centred on its
 present value (a ridge term) with the scale of its kind, so that coefficients the data do not determine stay
