@@ -12,6 +12,7 @@ import pandas as pd
 from phasekit.equilibrium.common import candidate_indices, composition_array, excluded_solids
 from phasekit.equilibrium.saturation import _solid_mass
 from phasekit.errors import InputError, RangeError
+from phasekit.paths.balance import as_dict, balance_frame, brine_mass, grades_frame, solid_mass_g
 from phasekit.paths.engine import COMPLETE, run_programme
 from phasekit.paths.result import PathResult
 from phasekit.thermo.water import T_MAX_C, T_MIN_C
@@ -111,10 +112,26 @@ def _result(model, path, mode, m0, temp0, exclude=(), allow_beyond_validity=Fals
         warns.append(f"the path stops at the {path.end_text}")
     elif path.stop_reason == "failure":
         warns.append(f"partial path ({path.end_text})")
+    mb, grades = _balance_and_grades(model, path, m0)
     return PathResult(events, steps, precipitated, path.end_text, mode, _density(model, m0, temp0), solution_mass,
                       masses, warns, getattr(model, "label", "embedded database"),
                       complete=path.stop_reason in COMPLETE, stop_reason=path.stop_reason, exclude=list(exclude),
-                      allow_beyond_validity=bool(allow_beyond_validity))
+                      allow_beyond_validity=bool(allow_beyond_validity), mass_balance=mb, grades=grades)
+
+
+def _balance_and_grades(model, path, m0):
+    """Mass balance (feed = solids + water evaporated + bittern) and grades of a path's final state."""
+    last = path.records[-1]
+    names = model.solids.names
+    crop = {names[k]: float(n) for k, n in enumerate(last["amounts"]) if n > 0}
+    outputs = [(f"solid: {s}", n * solid_mass_g(model.solids[s].stoichiometry) / 1000.0) for s, n in crop.items()]
+    outputs += [("water evaporated", float(last["r"])), ("bittern (brine left)", brine_mass(as_dict(model, last["m"]),
+                                                                                              last["w"]))]
+    mb = balance_frame([("feed brine", brine_mass(as_dict(model, m0), 1.0))], outputs)
+    crops = [(s, {s: n}) for s, n in crop.items()]
+    if len(crop) > 1:
+        crops.append(("all solids", crop))
+    return mb, grades_frame(crops, lambda s: model.solids[s].stoichiometry)
 
 
 def _species_masses(model):
