@@ -134,6 +134,12 @@ def _balance_and_grades(model, path, m0):
     return mb, grades_frame(crops, lambda s: model.solids[s].stoichiometry)
 
 
+def _noted(res, brine):
+    """The result with the brine's charge-balance line (how it was made neutral) on it."""
+    res.charge_balance_note = getattr(brine, "balance_note", "") or ""
+    return res
+
+
 def _species_masses(model):
     from phasekit.chemistry.species import SPECIES
 
@@ -189,7 +195,7 @@ def evaporate(brine, temp_c: float = 25.0, mode: str = "fractional", water_remov
         def cond(path, st, cf=cf, inner=stop_when):
             return 1.0 / st.w >= cf or (inner is not None and inner(path, st))
     path = run_programme(model, m0, 1.0, [(t, 0.0), (t, f)], mode, cond, cands, allow_beyond_validity)
-    return _result(model, path, mode, m0, t, excl, allow_beyond_validity)
+    return _noted(_result(model, path, mode, m0, t, excl, allow_beyond_validity), brine)
 
 
 def cool(brine, start_c: float, end_c: float, mode: str = "equilibrium", model=None, exclude=(),
@@ -216,7 +222,7 @@ def cool(brine, start_c: float, end_c: float, mode: str = "equilibrium", model=N
     m0 = _initial(model, brine)
     excl, cands = _exclusion(model, exclude)
     path = run_programme(model, m0, 1.0, [(t0, 0.0), (t1, 0.0)], mode, None, cands, allow_beyond_validity)
-    return _result(model, path, mode, m0, t0, excl, allow_beyond_validity)
+    return _noted(_result(model, path, mode, m0, t0, excl, allow_beyond_validity), brine)
 
 
 def heat(brine, start_c: float, end_c: float, mode: str = "equilibrium", model=None, exclude=(),
@@ -263,4 +269,4 @@ def programme(brine, nodes, mode: str = "fractional", model=None, exclude=(),
     m0 = _initial(model, brine)
     excl, cands = _exclusion(model, exclude)
     path = run_programme(model, m0, 1.0, clean, mode, None, cands, allow_beyond_validity)
-    return _result(model, path, mode, m0, clean[0][0], excl, allow_beyond_validity)
+    return _noted(_result(model, path, mode, m0, clean[0][0], excl, allow_beyond_validity), brine)

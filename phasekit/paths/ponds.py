@@ -285,7 +285,8 @@ def pond_train(brine, ponds: list, intake_m3_per_h=None, model=None, exclude=(),
     grades = grades_frame([(r["pond"].name, r["crop_mol"]) for r in runs], lambda n: model.solids[n].stoichiometry)
     harvest = pd.DataFrame(harvest_rows, columns=["pond", "solid", "mol", "g", "purity"])
     return PondTrainResult(harvest, pd.DataFrame(pond_rows), paths, make_brine(model, m), train_complete,
-                           train_reason, excl, list(dict.fromkeys(warns)), design, mb, grades, intake)
+                           train_reason, excl, list(dict.fromkeys(warns)), design, mb, grades, intake,
+                           getattr(brine, "balance_note", "") or "")
 
 
 #: stop reasons of a pond's path that mean its end condition was met
