@@ -14,6 +14,7 @@ from __future__ import annotations
 
 import math
 import numbers
+import re
 from collections.abc import Iterable, Mapping
 
 import numpy as np
@@ -33,6 +34,22 @@ def is_number(value) -> bool:
     return isinstance(value, numbers.Real) and not isinstance(value, bool | np.bool_)
 
 
+#: "31,000", "1,234,567.5" and "31 000": digits grouped by threes with commas (or spaces); a comma
+#: that does not group three digits ("12,5") is not read as a decimal comma here but refused
+_GROUPED = re.compile(r"^[+-]?\d{1,3}(?:(?P<sep>[, \u00a0\u202f])\d{3})(?:(?P=sep)\d{3})*(?:\.\d*)?$")
+
+
+def decimal_text(text: str) -> float:
+    """A float from numeric text, with thousands separators allowed ("31,000" -> 31000.0).
+
+    Raises ValueError for text that is not a number (including a lone decimal comma such as "12,5",
+    which is ambiguous in a text field: write 12.5)."""
+    t = text.strip()
+    if _GROUPED.match(t):
+        t = re.sub(r"[, \u00a0\u202f]", "", t)
+    return float(t)
+
+
 def number(field: str, value, expected: str = "a number", *, lo: float | None = None, hi: float | None = None,
            lo_open: bool = False, text: bool = False, range_error: bool = False) -> float:
     """A finite float from ``value``, within ``[lo, hi]`` (``lo`` excluded if ``lo_open``).
@@ -43,7 +60,7 @@ def number(field: str, value, expected: str = "a number", *, lo: float | None = 
     """
     if isinstance(value, str) and text:
         try:
-            x = float(value.strip())
+            x = decimal_text(value)
         except ValueError:
             raise InputError(field, value, expected) from None
     elif is_number(value):

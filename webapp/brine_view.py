@@ -69,7 +69,8 @@ def layout(inputs: dict) -> html.Div:
         html.Div(id="brine-msg", **{"aria-live": "polite"}),
         html.Div(id="cb-panel", className="pk-cb"),
         html.Div([
-            dcc.Dropdown(id="balance-ion", options=list(SPECIES), value="Cl", clearable=False, searchable=False,
+            dcc.Dropdown(id="balance-ion", options=[{"label": "auto: major ion of the short side", "value": "auto"}]
+                         + list(SPECIES), value="auto", clearable=False, searchable=False,
                          className="pk-dropdown pk-dropdown-small"),
             html.Button("Balance on this ion", id="balance-go", className="pk-btn"),
             html.Button("Use as analysed", id="balance-undo", className="pk-btn pk-btn-quiet"),
@@ -148,7 +149,7 @@ def build_brine(rows: list[dict], units: str, density: str, balance_on: str | No
     if raw is None:
         brine = pk.Brine.from_analysis(values, units=units, density=density_arg, balance_on=balance_on)
         return brine, brine
-    return raw, raw.balance(on=balance_on, allow_decrease=True)
+    return raw, raw.balance(on=balance_on)  # the library's rule: the ion is increased, never lowered
 
 
 def brine_state(name: str, raw, brine, balance_on) -> dict:
@@ -164,7 +165,9 @@ def _cb_panel(raw, brine, balance_on):
                        className="pk-hint")]
     if balance_on:
         detail = brine.warnings[-1].split(": ", 1)[-1] if brine.warnings else ""
-        state = html.Div([html.B(f"Balanced on {balance_on}, as you asked: "), html.Span(detail),
+        how = f"Balanced on {brine.balance_change['ion']} (auto: the major ion of the short side)" \
+            if balance_on == "auto" and brine.balance_change else f"Balanced on {balance_on}"
+        state = html.Div([html.B(f"{how}, as you asked: "), html.Span(detail),
                           html.Span(" ('Use as analysed' undoes it.)", className="pk-hint")],
                          className="pk-msg pk-note", id="balance-state")
     elif abs(cb) > 1e-4:

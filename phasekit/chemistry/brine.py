@@ -21,7 +21,16 @@ Examination of Water and Wastewater, section 1030 E, for anion sums above 10 meq
 memory). Above :data:`CHARGE_BALANCE_MAX_PERCENT` (50 %, a cation/anion equivalent ratio of 3 or
 1/3) it is refused: no analysis, even one that misses a major ion, is that far off unless units or
 columns are mixed up. A brine is never balanced silently: :meth:`Brine.balance` (or
-``balance_on=`` of the constructors from analyses) does it on a named ion and records it.
+``balance_on=`` of the constructors from analyses) does it and records it.
+
+The charge-balance rule (:data:`BALANCE_RULE`; the same in the library, the command line and the
+app): the ion adjusted is the **major ion of the side that is short** — the anion with the most
+equivalents when the cations are in excess, the cation with the most equivalents when the anions
+are (``on="auto"``, the default) — and it is only ever **increased**: the usual completion of an
+analysis by difference. A named ion (``on="Cl"``) obeys the same rule: it must be of the side that
+is short. Lowering an ion is possible in the library only, with ``allow_decrease=True``. Every
+balanced brine records what was changed, on which ion and by how much (:attr:`Brine.balance_change`
+and a line in :attr:`Brine.warnings`), and every path, pond train and app view shows that line.
 """
 
 from __future__ import annotations
@@ -40,8 +49,11 @@ from phasekit.chemistry.density import estimate_density
 from phasekit.chemistry.salts import parse_salt, salt_formula_mass
 from phasekit.chemistry.species import M_WATER, SPECIES, parse_species
 from phasekit.errors import AnalysisWarning, ConvergenceError, InputError, PhasekitError, RangeError, ValidityWarning
-from phasekit.validate import MAX_MOLALITY
+from phasekit.validate import MAX_MOLALITY, decimal_text
 
+#: the one charge-balance rule of library, CLI and app, in words (README "Charge balance")
+BALANCE_RULE = ("an unbalanced analysis is made neutral by increasing the major ion of the side that is short "
+                "(the anion with the most equivalents when cations are in excess, else the cation); no ion is lowered")
 #: |charge balance| (%) above which an analysis carries a warning (see the module docstring)
 CHARGE_BALANCE_WARN_PERCENT = 5.0
 #: |charge balance| (%) above which an analysis is refused (see the module docstring)
@@ -66,9 +78,11 @@ _UNITS = {
     "mass%": ("solution", 10.0),
     "mg/L": ("litre", 1e-3),
     "g/L": ("litre", 1.0),
+    "meq/L": ("litre", 1.0),  # converted to g/L first: c_i M_i / (1000 |z_i|)
 }
-_UNIT_ALIASES = {"mg/l": "mg/L", "g/l": "g/L", "wt%": "mass%", "mass %": "mass%", "mol/kgw": "mol/kg"}
-_UNITS_TEXT = "one of 'mol/kg' (per kg water), 'mg/kg', 'g/kg', 'mass%' (per kg solution), 'mg/L', 'g/L'"
+_UNIT_ALIASES = {"mg/l": "mg/L", "g/l": "g/L", "meq/l": "meq/L", "mmol(eq)/l": "meq/L", "wt%": "mass%", "mass %": "mass%", "mol/kgw": "mol/kg"}
+_UNITS_TEXT = ("one of 'mol/kg' (per kg water), 'mg/kg', 'g/kg', 'mass%' (per kg solution), 'mg/L', 'g/L', "
+               "'meq/L' (per litre of solution)")
 
 _HYDRATE = re.compile(r"^(?P<salt>[^·•.*(]+(?:\([^)]*\)\d*)?)\s*(?:[·•.*]\s*(?P<n1>\d*)\s*H2O|\(H2O\)(?P<n2>\d+))$")
 
@@ -104,9 +118,9 @@ def _number(field: str, value, what: str, missing: str = "error") -> float:
         raise InputError(field, value, what)
     if isinstance(value, str):
         try:
-            x = float(value.strip())
+            x = decimal_text(value)
         except ValueError:
-            raise InputError(field, value, what) from None
+            raise InputError(field, value, what + "; thousands may be grouped as 31,000") from None
     elif isinstance(value, numbers.Real):
         x = float(value)
     else:
@@ -205,6 +219,7 @@ class Brine:
         self._m = _species_values(molalities, "molalities", "a finite molality >= 0 (mol/kg water)")
         self.warnings: list[str] = []
         self.conversion_density: float | None = None
+        self.balance_change: dict | None = None
 
     # ------------------------------------------------------------------ constructors
     @classmethod
@@ -218,7 +233,8 @@ class Brine:
             Amount of each species (``Na``, ``Mg2+``, ``SO4`` ...) in ``units``.
         units : str
             ``"mol/kg"`` (per kg water); ``"mg/kg"``, ``"g/kg"``, ``"mass%"`` (per kg of solution);
-            ``"mg/L"``, ``"g/L"`` (per litre of solution).
+            ``"mg/L"``, ``"g/L"``, ``"meq/L"`` (per litre of solution; meq/L is c_i M_i / (1000 |z_i|) g/L).
+            Numeric text may group thousands with commas ("31,000").
         density : float, optional
             Density of the solution in kg/L (= g/cm3), used by per-litre units. If omitted, the
             density model of :mod:`phasekit.chemistry.density` gives it at ``temp_c``. Ignored by
@@ -226,7 +242,8 @@ class Brine:
         temp_c : float
             Temperature in °C at which the litre was measured (density model only).
         balance_on : str, optional
-            Balance the charge on this ion (:meth:`balance`); recorded in :attr:`warnings`. With it,
+            ``"auto"`` (the charge-balance rule) or an ion: balance the charge (:meth:`balance`);
+            recorded in :attr:`warnings` and :attr:`balance_change`. With it,
             an imbalance above :data:`CHARGE_BALANCE_MAX_PERCENT` is not refused.
         missing : {"error", "zero"}
             What a missing value (None, NaN, empty text) means: an error (default) or zero.
@@ -263,7 +280,10 @@ class Brine:
         elif basis == "solution":
             m = _molal_from_solution_basis({s: v * factor for s, v in vals.items()}, u, factor)
         else:
-            per_litre = {s: v * factor for s, v in vals.items()}  # g/L
+            if u == "meq/L":  # milliequivalents per litre: mol/L = meq/L / (1000 |z|)
+                per_litre = {s: v / (1000.0 * abs(SPECIES[s].charge)) * SPECIES[s].molar_mass for s, v in vals.items()}
+            else:
+                per_litre = {s: v * factor for s, v in vals.items()}  # g/L
             if density is not None:
                 used_density = _check_density(density)
                 m = cls._from_litre(per_litre, used_density, u, factor)
@@ -306,6 +326,9 @@ class Brine:
         Brine
         """
         u, basis, _ = _unit(units)
+        if u == "meq/L":
+            raise InputError("units", units, "mass or molal units for salts (mass%, g/kg, mg/kg, g/L, mg/L, mol/kg); "
+                             "meq/L is for an analysis as ions (Brine.from_analysis)")
         if isinstance(salts, Brine) or not isinstance(salts, Mapping | pd.Series) or len(salts) == 0:
             raise InputError("salts", salts if isinstance(salts, Mapping) else type(salts).__name__,
                              "a non-empty mapping of salt formulas to amounts, e.g. {'NaCl': 26.4}")
@@ -413,6 +436,7 @@ class Brine:
         b._m = {s: float(m[s]) for s in SPECIES if s in m}
         b.warnings = []
         b.conversion_density = None
+        b.balance_change = None
         return b
 
     # ------------------------------------------------------------------ tables
@@ -623,6 +647,9 @@ class Brine:
         if basis == "solution":
             return {s: v / factor for s, v in per_kg_solution.items()}
         rho = _check_density(density) if density is not None else self.density(_check_temp(temp_c))
+        if u == "meq/L":
+            return {s: v * rho * 1000.0 * abs(SPECIES[s].charge) / SPECIES[s].molar_mass
+                    for s, v in per_kg_solution.items()}
         return {s: v * rho / factor for s, v in per_kg_solution.items()}
 
     def density(self, temp_c: float = 25.0) -> float:
@@ -644,13 +671,28 @@ class Brine:
         cb = 100.0 * (cat - an) / (cat + an)
         return 0.0 if abs(cb) < 1e-12 else cb
 
-    def balance(self, on: str = "Cl", allow_decrease: bool = False) -> Brine:
+    def balance_ion(self) -> str | None:
+        """The ion the charge-balance rule adjusts (module description): the major ion, in
+        equivalents, of the side that is short (the rule of ``phasekit batch`` too; ties, which
+        real analyses do not have, go to the name last in alphabetical order).
+        None for a neutral brine. Without any ion of the short side, Cl (anions short) or Na."""
+        cb = self.charge_balance()
+        if cb == 0.0:
+            return None
+        side = [s for s in self._m if (SPECIES[s].charge < 0) == (cb > 0) and self._m[s] > 0]
+        if not side:
+            return "Cl" if cb > 0 else "Na"
+        return max(side, key=lambda s: (abs(SPECIES[s].charge) * self._m[s], s))
+
+    def balance(self, on: str = "auto", allow_decrease: bool = False) -> Brine:
         """A new brine, electrically neutral, made so by changing the amount of one ion.
 
         Parameters
         ----------
         on : str
-            The ion to adjust (any accepted spelling; it need not be in the brine yet).
+            ``"auto"`` (default): the charge-balance rule of the module description, the major ion
+            of the side that is short, increased. Or the ion to adjust (any accepted spelling; it
+            need not be in the brine yet). A neutral brine is returned unchanged.
         allow_decrease : bool
             By default the ion is only increased (the usual "by difference" completion of an
             analysis). Allow decreasing it when the ion itself is in excess.
@@ -666,10 +708,19 @@ class Brine:
             If balancing on ``on`` would need decreasing it (unless ``allow_decrease``), or a
             negative amount of it.
         """
-        try:
-            name = parse_species(on)
-        except InputError as err:
-            raise InputError("on", on, err.expected) from None
+        if isinstance(on, str) and on.strip().lower() == "auto":
+            name = self.balance_ion()
+            if name is None:
+                b = Brine._make(self._m)
+                b.warnings = list(self.warnings)
+                b.conversion_density = self.conversion_density
+                b.balance_change = None
+                return b
+        else:
+            try:
+                name = parse_species(on)
+            except InputError as err:
+                raise InputError("on", on, err.expected + ", or 'auto'") from None
         z = SPECIES[name].charge
         cat, an = _equivalents(self._m)
         excess = cat - an  # eq/kg water
@@ -696,8 +747,17 @@ class Brine:
         b = Brine._make(m)
         b.warnings = list(self.warnings)
         b.conversion_density = self.conversion_density
-        b.warnings.append(f"balanced on {name}: {old:.6g} -> {new:.6g} mol/kg (charge balance was {cb:+.2f} %)")
+        rel = f", {100.0 * delta / old:+.3g} %" if old > 0 else ""
+        b.warnings.append(f"balanced on {name}: {old:.6g} -> {new:.6g} mol/kg ({delta:+.4g} mol/kg{rel}; "
+                          f"charge balance was {cb:+.2f} %)")
+        b.balance_change = {"ion": name, "from_mol_per_kg": old, "to_mol_per_kg": new, "change_mol_per_kg": delta,
+                            "charge_balance_before_percent": cb}
         return b
+
+    @property
+    def balance_note(self) -> str:
+        """The line saying how the brine was made neutral ("" if it was not changed)."""
+        return next((w for w in reversed(self.warnings) if w.startswith("balanced on ")), "")
 
     # ------------------------------------------------------------------ derived brines
     def scaled(self, factor: float) -> Brine:

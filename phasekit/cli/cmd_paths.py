@@ -7,7 +7,7 @@ import pandas as pd
 from phasekit.cli import common as c
 from phasekit.errors import InputError
 
-PATH_TABLES = ("steps", "events", "summary", "precipitated")
+PATH_TABLES = ("steps", "events", "summary", "precipitated", "mass_balance", "grades")
 
 
 def _excl(args) -> list:
@@ -27,6 +27,7 @@ def _path_report(res, scalars: dict, x: str, title: str) -> c.Report:
     scalars = dict(scalars)
     scalars.update({"mode": res.mode, "complete": res.complete, "stop_reason": res.stop_reason,
                     "end_point": res.end_point, "exclude": list(res.exclude),
+                    "charge_balance": res.charge_balance_note or "neutral as analysed",
                     "beyond_validity": res.allow_beyond_validity,
                     "first_solid": first["solid"] if first else None,
                     "first_solid_concentration_factor": first["concentration_factor"] if first else None,
@@ -34,8 +35,9 @@ def _path_report(res, scalars: dict, x: str, title: str) -> c.Report:
     prec = res.precipitated.add_prefix("mol_")
     steps = pd.concat([res.steps, prec], axis=1)
     rep = c.Report(scalars=scalars, tables={"steps": steps, "events": res.events, "summary": res.summary(),
-                                            "precipitated": res.precipitated},
-                   main="steps", warnings=list(res.warnings), show=["events", "summary"])
+                                            "precipitated": res.precipitated, "mass_balance": res.mass_balance,
+                                            "grades": res.grades},
+                   main="steps", warnings=list(res.warnings), show=["events", "summary", "mass_balance"])
 
     def draw(path):
         from phasekit.cli.plots import path_figure
@@ -82,14 +84,20 @@ def _mix(args) -> c.Report:
 # ------------------------------------------------------------------------------ ponds
 _POND_KEYS = {"name": "name", "temp": "temp_c", "temp_c": "temp_c", "water_removed": "water_removed",
               "cf": "concentration_factor", "concentration_factor": "concentration_factor",
-              "until": "until_saturated", "until_saturated": "until_saturated", "mode": "mode"}
+              "until": "until_saturated", "until_saturated": "until_saturated", "mode": "mode",
+              "area": "area_m2", "area_m2": "area_m2", "evap": "net_evaporation_mm_per_day",
+              "net_evaporation_mm_per_day": "net_evaporation_mm_per_day", "seepage": "seepage_fraction",
+              "seepage_fraction": "seepage_fraction", "rain": "rain_mm_per_year", "rain_mm_per_year": "rain_mm_per_year",
+              "depth": "depth_m", "depth_m": "depth_m"}
+_POND_NUMBERS = ("temp_c", "water_removed", "concentration_factor", "area_m2", "net_evaporation_mm_per_day",
+                 "seepage_fraction", "rain_mm_per_year", "depth_m")
 _POND_EXAMPLE = "name=Heron 1;temp=30;cf=3.5"
 
 
 def _pond_value(key: str, value, field: str):
-    if key in ("temp_c", "water_removed", "concentration_factor"):
+    if key in _POND_NUMBERS:
         try:
-            return float(value)
+            return float(str(value).replace(",", "")) if isinstance(value, str) else float(value)
         except (TypeError, ValueError):
             raise InputError(field, value, "a number") from None
     if key == "until_saturated":
@@ -109,7 +117,8 @@ def parse_pond(text: str, i: int) -> dict:
         key = key.strip().lower()
         if not eq or key not in _POND_KEYS:
             raise InputError(field, item.strip(), f"KEY=VALUE items separated by ';' with keys name, temp, and one of "
-                                                  f"cf, water_removed, until (optionally mode), e.g. '{_POND_EXAMPLE}'")
+                                                  f"cf, water_removed, until (optionally mode, area, evap, seepage, "
+                                                  f"rain, depth), e.g. '{_POND_EXAMPLE}'")
         out[_POND_KEYS[key]] = _pond_value(_POND_KEYS[key], value.strip(), f"{field} {key}")
     for need in ("name", "temp_c"):
         if need not in out:
@@ -130,7 +139,8 @@ def read_ponds_file(path: str) -> list[dict]:
     unknown = [col for col in df.columns if col not in _POND_KEYS]
     if unknown:
         raise InputError("--ponds column", unknown[0], "name, temp_c, water_removed, concentration_factor, "
-                                                      "until_saturated, mode")
+                                                      "until_saturated, mode, area_m2, net_evaporation_mm_per_day, "
+                                                      "seepage_fraction, rain_mm_per_year, depth_m")
     ponds = []
     for i, row in enumerate(df.to_dict("records")):
         p = {}
@@ -153,13 +163,19 @@ def _ponds(args) -> c.Report:
         raise InputError("--pond", None, "the ponds: --pond '...' once per pond, or --ponds FILE.csv (not both)")
     ponds = [parse_pond(t, i) for i, t in enumerate(args.pond)] if args.pond else read_ponds_file(args.ponds)
     res = pk.pond_train(brine, [pk.Pond(**p) for p in ponds], model=c.model_of(args), exclude=_excl(args),
-                        allow_beyond_validity=args.beyond_validity)
+                        allow_beyond_validity=args.beyond_validity, intake_m3_per_h=args.intake_m3_per_h,
+                        intake_t_per_year=args.intake_t_per_year, intake_density_kg_per_l=args.intake_density)
     scalars = {"ponds": [p["name"] for p in ponds], "complete": res.complete, "stop_reason": res.stop_reason,
                "exclude": list(res.exclude), "beyond_validity": bool(args.beyond_validity),
-               "outflow_charge_balance_percent": res.outflow.charge_balance()}
+               "outflow_charge_balance_percent": res.outflow.charge_balance(),
+               "charge_balance": res.charge_balance_note or "neutral as analysed",
+               "intake_m3_per_h": res.intake["m3_per_h"], "intake_t_per_year": res.intake["t_per_year"],
+               "intake_density_kg_per_l": res.intake["density_kg_per_l"],
+               "intake_density_from": res.intake["density_from"]}
     rep = c.Report(scalars=scalars, tables={"ponds": res.ponds, "harvest": res.harvest,
-                                            "outflow": c.brine_table(res.outflow)}, main="ponds",
-                   warnings=list(res.warnings))
+                                            "outflow": c.brine_table(res.outflow), "design": res.design,
+                                            "mass_balance": res.mass_balance, "grades": res.grades}, main="ponds",
+                   warnings=list(res.warnings), show=["ponds", "design", "mass_balance"])
     return _partial(rep, res.complete, res.stop_reason)
 
 
@@ -192,8 +208,9 @@ def _convert(args) -> c.Report:
                           for s, g in crop.items()])
     liquors = pd.DataFrame([{"liquor": "hot (before dilution)", "water_kg": res.hot_water_kg, **res.hot_liquor},
                             {"liquor": "cold (recycle)", "water_kg": res.recycle_water_kg, **res.recycle}])
-    return c.Report(scalars=scalars, tables={"stages": res.stages, "crops": crops, "liquors": liquors},
-                    main="stages", warnings=list(res.warnings), show=["stages", "crops", "liquors"])
+    return c.Report(scalars=scalars, tables={"stages": res.stages, "crops": crops, "liquors": liquors,
+                                             "mass_balance": res.mass_balance, "grades": res.grades},
+                    main="stages", warnings=list(res.warnings), show=["stages", "crops", "liquors", "mass_balance"])
 
 
 def register(sub) -> None:
@@ -259,7 +276,14 @@ def register(sub) -> None:
     p.add_argument("--ponds", metavar="FILE", help="a CSV of ponds, one per row, in order")
     c.add_path_options(p)
     c.add_overlay_option(p)
-    c.add_output_options(p, tables=("ponds", "harvest", "outflow"))
+    g = p.add_argument_group("design")
+    g.add_argument("--intake-m3-per-h", type=c.flow_number, metavar="M3_PER_H",
+                   help="intake flow of brine, m³/h (areas, flows, residence times and tonnage per year follow; "
+                   "ponds take area=, evap= (net evaporation, mm/day), rain= (mm/year), seepage=, depth= (m))")
+    g.add_argument("--intake-t-per-year", type=c.flow_number, metavar="T_PER_YEAR", help="or the intake in t/year")
+    g.add_argument("--intake-density", type=c.flow_number, metavar="KG_PER_L",
+                   help="measured density of the intake (default: the density model)")
+    c.add_output_options(p, tables=("ponds", "harvest", "outflow", "design", "mass_balance", "grades"))
     p.set_defaults(func=_ponds)
 
     p = c.add_parser(sub, "convert", "hot/cold conversion cycle (e.g. KNO3 from NaNO3 + KCl)",

@@ -10,6 +10,7 @@ import argparse
 import io
 import json
 import math
+import re
 import sys
 import textwrap
 from collections.abc import Callable
@@ -165,7 +166,15 @@ def parse_pairs(text: str, option: str, example: str) -> dict:
     out: dict = {}
     if not isinstance(text, str) or not text.strip():
         raise InputError(option, text, f"KEY=VALUE pairs separated by commas, e.g. {example}")
+    items: list = []
     for item in text.split(","):
+        # a group of three digits after a value continues it: "Na=31,000,Cl=47,800" (thousands)
+        if items and "=" not in item and re.fullmatch(r"\d{3}(\.\d*)?", item.strip()) and \
+                re.search(r"=\s*[+-]?\d[\d,]*$", items[-1]):
+            items[-1] += "," + item.strip()
+            continue
+        items.append(item)
+    for item in items:
         key, eq, value = item.partition("=")
         if not eq or not key.strip() or not value.strip():
             raise InputError(option, item.strip(), f"KEY=VALUE pairs separated by commas, e.g. {example}")
@@ -182,12 +191,29 @@ def require_units(args) -> str:
     return args.units
 
 
+def flow_number(text: str) -> float:
+    """argparse type: a finite number > 0, thousands grouped as 31,000 allowed."""
+    import argparse
+
+    from phasekit.validate import decimal_text
+
+    try:
+        x = decimal_text(str(text))
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"{text!r} is not a number (thousands may be grouped as 31,000)") from None
+    if not (x > 0 and x < float("inf")):
+        raise argparse.ArgumentTypeError(f"{text!r}: expected a number > 0")
+    return x
+
+
 def _balanced(brine, policy: str, notes: list):
-    from phasekit.batch.rows import balance_ion
+    """The library's charge-balance rule (``Brine.balance``, README "Charge balance"): 'auto' increases the
+    major ion of the side that is short; a named ion must be of that side; 'none' refuses an unbalanced brine."""
     from phasekit.batch.runner import check_balance_on
 
     policy = check_balance_on(policy)
-    ion = balance_ion(brine, policy)
+    ion = None if policy == "none" or brine.charge_balance() == 0.0 else (
+        brine.balance_ion() if policy == "auto" else policy)
     if ion is None:
         cat, an = brine.cation_equivalents, brine.anion_equivalents
         if abs(cat - an) > 1e-6 * (cat + an) + 1e-12:

@@ -36,6 +36,7 @@ from phasekit.equilibrium.common import composition_array, excluded_solids
 from phasekit.equilibrium.saturation import _solid_mass
 from phasekit.equilibrium.solver import solve_robust
 from phasekit.errors import ConvergenceError, InputError, RangeError, ValidityWarning
+from phasekit.paths.balance import as_dict, balance_frame, brine_mass, grades_frame, solid_mass_g
 from phasekit.paths.evaporation import _model, _temp
 
 #: smallest water left in the hot stage, kg per kg of feed water
@@ -68,6 +69,13 @@ class CycleResult:
     warnings : list of str
     exclude : list of str
         Solids kept out of the cycle.
+    mass_balance : pandas.DataFrame
+        ``stream``, ``kind`` (in, out, closure), ``kg_per_t_feed``: feed brine + water added =
+        hot crop + cold crop + water evaporated + cold mother liquor, and the closure (in - out);
+        see :mod:`phasekit.paths.balance`. The feed is the feed brine and the water added.
+    grades : pandas.DataFrame
+        The hot and the cold crop: ``crop_g``, ``main_solid``, ``purity``, ``KCl_percent``,
+        ``K2O_percent`` (definitions in ``grades.attrs["definitions"]``).
     """
 
     stages: pd.DataFrame
@@ -81,6 +89,8 @@ class CycleResult:
     database: str = "embedded database"
     warnings: list = field(default_factory=list)
     exclude: list = field(default_factory=list)
+    mass_balance: pd.DataFrame = field(default_factory=pd.DataFrame)
+    grades: pd.DataFrame = field(default_factory=pd.DataFrame)
 
 
 def _state(model, b, water, t, exclude=()):
@@ -235,5 +245,26 @@ def hot_cold_cycle(feed, hot_c: float = 90.0, cold_c: float = 20.0, hot_solid: s
     ])
     liquor = {s: float(v) for s, v in zip(model.species, hot.m) if v > 0}
     recycle = {s: float(v) for s, v in zip(model.species, cold.m) if v > 0}
+    mb, grades = _balance(model, m0, w_hot, add, hot, cold)
     return CycleResult(stages, hot_solids, cold_solids, liquor, float(hot.w), recycle, float(cold.w), yields,
-                       getattr(model, "label", "embedded database"), notes, list(excl))
+                       getattr(model, "label", "embedded database"), notes, list(excl), mb, grades)
+
+
+def _balance(model, m0, w_hot, add, hot, cold):
+    """Feed brine + water added = hot crop + cold crop + water evaporated + cold mother liquor.
+
+    ``w_hot`` is the water (liquid and of crystallization) left after the hot evaporation, so the
+    water evaporated is 1 - w_hot per kg of feed water."""
+    names = model.solids.names
+    crops = []
+    outputs = []
+    for label, st in (("hot crop", hot), ("cold crop", cold)):
+        mol = {names[k]: float(st.n[k]) for k in st.active if st.n[k] > 0}
+        crops.append((label, mol))
+        outputs += [(f"{label}: {n}", x * solid_mass_g(model.solids[n].stoichiometry) / 1000.0) for n, x in mol.items()]
+    outputs += [("water evaporated", 1.0 - float(w_hot)), ("cold mother liquor", brine_mass(as_dict(model, cold.m),
+                                                                                          float(cold.w)))]
+    inputs = [("feed brine", brine_mass(as_dict(model, m0), 1.0))]
+    if add:
+        inputs.append(("water added", float(add)))
+    return balance_frame(inputs, outputs), grades_frame(crops, lambda n: model.solids[n].stoichiometry)

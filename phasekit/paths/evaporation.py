@@ -12,6 +12,7 @@ import pandas as pd
 from phasekit.equilibrium.common import candidate_indices, composition_array, excluded_solids
 from phasekit.equilibrium.saturation import _solid_mass
 from phasekit.errors import InputError, RangeError
+from phasekit.paths.balance import as_dict, balance_frame, brine_mass, grades_frame, solid_mass_g
 from phasekit.paths.engine import COMPLETE, run_programme
 from phasekit.paths.result import PathResult
 from phasekit.thermo.water import T_MAX_C, T_MIN_C
@@ -111,10 +112,32 @@ def _result(model, path, mode, m0, temp0, exclude=(), allow_beyond_validity=Fals
         warns.append(f"the path stops at the {path.end_text}")
     elif path.stop_reason == "failure":
         warns.append(f"partial path ({path.end_text})")
+    mb, grades = _balance_and_grades(model, path, m0)
     return PathResult(events, steps, precipitated, path.end_text, mode, _density(model, m0, temp0), solution_mass,
                       masses, warns, getattr(model, "label", "embedded database"),
                       complete=path.stop_reason in COMPLETE, stop_reason=path.stop_reason, exclude=list(exclude),
-                      allow_beyond_validity=bool(allow_beyond_validity))
+                      allow_beyond_validity=bool(allow_beyond_validity), mass_balance=mb, grades=grades)
+
+
+def _balance_and_grades(model, path, m0):
+    """Mass balance (feed = solids + water evaporated + bittern) and grades of a path's final state."""
+    last = path.records[-1]
+    names = model.solids.names
+    crop = {names[k]: float(n) for k, n in enumerate(last["amounts"]) if n > 0}
+    outputs = [(f"solid: {s}", n * solid_mass_g(model.solids[s].stoichiometry) / 1000.0) for s, n in crop.items()]
+    outputs += [("water evaporated", float(last["r"])), ("bittern (brine left)", brine_mass(as_dict(model, last["m"]),
+                                                                                              last["w"]))]
+    mb = balance_frame([("feed brine", brine_mass(as_dict(model, m0), 1.0))], outputs)
+    crops = [(s, {s: n}) for s, n in crop.items()]
+    if len(crop) > 1:
+        crops.append(("all solids", crop))
+    return mb, grades_frame(crops, lambda s: model.solids[s].stoichiometry)
+
+
+def _noted(res, brine):
+    """The result with the brine's charge-balance line (how it was made neutral) on it."""
+    res.charge_balance_note = getattr(brine, "balance_note", "") or ""
+    return res
 
 
 def _species_masses(model):
@@ -172,7 +195,7 @@ def evaporate(brine, temp_c: float = 25.0, mode: str = "fractional", water_remov
         def cond(path, st, cf=cf, inner=stop_when):
             return 1.0 / st.w >= cf or (inner is not None and inner(path, st))
     path = run_programme(model, m0, 1.0, [(t, 0.0), (t, f)], mode, cond, cands, allow_beyond_validity)
-    return _result(model, path, mode, m0, t, excl, allow_beyond_validity)
+    return _noted(_result(model, path, mode, m0, t, excl, allow_beyond_validity), brine)
 
 
 def cool(brine, start_c: float, end_c: float, mode: str = "equilibrium", model=None, exclude=(),
@@ -199,7 +222,7 @@ def cool(brine, start_c: float, end_c: float, mode: str = "equilibrium", model=N
     m0 = _initial(model, brine)
     excl, cands = _exclusion(model, exclude)
     path = run_programme(model, m0, 1.0, [(t0, 0.0), (t1, 0.0)], mode, None, cands, allow_beyond_validity)
-    return _result(model, path, mode, m0, t0, excl, allow_beyond_validity)
+    return _noted(_result(model, path, mode, m0, t0, excl, allow_beyond_validity), brine)
 
 
 def heat(brine, start_c: float, end_c: float, mode: str = "equilibrium", model=None, exclude=(),
@@ -246,4 +269,4 @@ def programme(brine, nodes, mode: str = "fractional", model=None, exclude=(),
     m0 = _initial(model, brine)
     excl, cands = _exclusion(model, exclude)
     path = run_programme(model, m0, 1.0, clean, mode, None, cands, allow_beyond_validity)
-    return _result(model, path, mode, m0, clean[0][0], excl, allow_beyond_validity)
+    return _noted(_result(model, path, mode, m0, clean[0][0], excl, allow_beyond_validity), brine)

@@ -44,6 +44,16 @@ class PathResult:
         Solids kept out of the path.
     allow_beyond_validity : bool
         Whether the path was allowed past the validity limit.
+    mass_balance : pandas.DataFrame
+        ``stream``, ``kind`` (in, out, closure), ``kg_per_t_feed``: feed brine = each solid
+        (harvested in fractional mode, present at the end in equilibrium mode) + water evaporated
+        + the brine left (bittern), and the closure (in - out); see :mod:`phasekit.paths.balance`.
+    grades : pandas.DataFrame
+        One row per solid and one for all solids together: ``crop_g`` (per kg of initial water),
+        ``main_solid``, ``purity``, ``KCl_percent``, ``K2O_percent``; the definitions are in
+        ``grades.attrs["definitions"]``.
+    charge_balance_note : str
+        How the brine was made neutral before the path ("" if it was not changed).
     """
 
     events: pd.DataFrame
@@ -60,6 +70,9 @@ class PathResult:
     stop_reason: str = "end of programme"
     exclude: list = field(default_factory=list)
     allow_beyond_validity: bool = False
+    mass_balance: pd.DataFrame = field(default_factory=pd.DataFrame)
+    grades: pd.DataFrame = field(default_factory=pd.DataFrame)
+    charge_balance_note: str = ""
 
     @property
     def first_solid(self) -> dict | None:

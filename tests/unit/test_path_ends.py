@@ -245,6 +245,8 @@ def test_random_brines_return_a_path_with_a_reason(model, mode, k):
     assert res.complete == (res.stop_reason not in ("failure", "validity limit"))
     assert len(res.steps) >= 1
     _balance(model, res, comp)
+    mb = res.mass_balance  # feed = solids + water evaporated + bittern, kg per tonne of feed
+    assert abs(mb.loc[mb["kind"] == "closure", "kg_per_t_feed"].iloc[0]) < 1e-9 * 1000
     assert np.all(res.steps["ionic_strength"] <= model.db.ionic_strength_max * (1 + 1e-9))
     _event_rows_consistent(model, res, temp_c)
 
