@@ -54,9 +54,10 @@ def kernels(model):
     out = (np.empty_like(m), np.empty(n), np.empty(n), np.empty(n), np.empty(n))
 
     def run(fn):
+        extra = (np.zeros(kernel.chunks_for(n), dtype=np.int64),) if fn is kernel.pitzer_rows_parallel else ()
         fn(m, len(model.cations), model.zc, model.za, p["beta0"], p["beta1"], p["beta2"], p["ualpha"],
            p["ia1"], p["ia2"], p["C"], p["theta_c"], p["theta_a"], p["psi_c"], p["psi_a"], p["aphi"],
-           x0, h, coef, kmax, *out, M_WATER)
+           x0, h, coef, kmax, *out, M_WATER, *extra)
 
     for name in ("pitzer_rows_serial", "pitzer_rows_parallel"):
         fn = getattr(kernel, name)
