@@ -64,7 +64,7 @@ def _gfun(x):
     return 2.0 * (1.0 - (1.0 + x) * ex) / x2, -2.0 * (1.0 - (1.0 + x + 0.5 * x2) * ex) / x2, ex
 
 
-@numba.njit(cache=True)
+@numba.njit(cache=True, inline="always")
 def _row(r, m, nc, zc, za, beta0, beta1, beta2, ualpha, ia1, ia2, cc, theta_c, theta_a, psi_c, psi_a,
          aphi, x0, h, coef, kmax, ln_gamma, osmotic, ln_aw, ionic, gex, m_water, gu, gpu, eu):
     """Evaluate the Pitzer model for row ``r`` of ``m`` (N, ns); results written in place.
