@@ -32,6 +32,38 @@ def main():
     rows = df.iloc[:2000].to_dict("records")
     t_loop = median_time(lambda: [model.activity(r, 25.0) for r in rows], repeat=3) / len(rows)
     print(f"{'ratio: per-composition loop / vectorized, per composition':<58s} {t_loop / (t_batch / len(df)):>12.1f} x")
+    kernels(model)
+
+
+def kernels(model):
+    """The compiled kernel alone on 1,000,000 rows: the serial and the parallel variant (issue 20)."""
+    import numba
+    import numpy as np
+
+    from phasekit.chemistry.species import M_WATER
+    from phasekit.thermo import kernel
+    from phasekit.thermo.etheta import jtable
+
+    big = seawater_system_compositions(1_000_000, seed=1)
+    m = np.zeros((len(big), len(model.species)))
+    for c in big.columns:
+        m[:, model.index[c]] = big[c].to_numpy()
+    p = model.parameters(25.0)
+    x0, h, coef, kmax = jtable()
+    n = len(m)
+    out = (np.empty_like(m), np.empty(n), np.empty(n), np.empty(n), np.empty(n))
+
+    def run(fn):
+        extra = (np.zeros(kernel.chunks_for(n), dtype=np.int64),) if fn is kernel.pitzer_rows_parallel else ()
+        fn(m, len(model.cations), model.zc, model.za, p["beta0"], p["beta1"], p["beta2"], p["ualpha"],
+           p["ia1"], p["ia2"], p["C"], p["theta_c"], p["theta_a"], p["psi_c"], p["psi_a"], p["aphi"],
+           x0, h, coef, kmax, *out, M_WATER, *extra)
+
+    for name in ("pitzer_rows_serial", "pitzer_rows_parallel"):
+        fn = getattr(kernel, name)
+        run(fn)
+        t = median_time(lambda fn=fn: run(fn), repeat=5)
+        report(f"kernel {name}, 1,000,000 rows ({numba.get_num_threads()} threads)", t * 1e3, 1e3, "ms")
 
 
 if __name__ == "__main__":

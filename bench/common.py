@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import os
 import time
 import warnings
 
@@ -37,7 +38,12 @@ def report(name: str, measured: float, target: float, unit: str, better: str = "
     """Print one benchmark line: name, measured median, target, and whether it is met."""
     ok = measured <= target if better == "lower" else measured >= target
     print(f"{name:<58s} {measured:>12.4g} {unit:<10s} target {'<=' if better == 'lower' else '>='} "
-          f"{target:g} {unit:<10s} {'met' if ok else 'NOT MET'}")
+          f"{target:g} {unit:<10s} {'met' if ok else 'NOT MET'}  (load {load()})")
+
+
+def load() -> str:
+    """The 1-minute load average and the core count, printed beside every figure."""
+    return f"{os.getloadavg()[0]:.2f} on {os.cpu_count()} cores"
 
 
 def quiet():

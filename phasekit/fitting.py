@@ -23,7 +23,10 @@ Both return a :class:`FitResult` with the parameter covariance s² (JᵀJ)⁻¹,
 
 from __future__ import annotations
 
+import copy
+import dataclasses
 import warnings
+import weakref
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -250,20 +253,12 @@ def parameter_value(model, spec) -> float:
     return float(table.loc[sel, coef].iloc[0])
 
 
-def with_parameters(model, specs, values):
-    """A new model whose database has each parameter spec set to its value.
-
-    Specs as for :func:`fit_parameters`; the model's own database is not changed.
-    """
-    from phasekit.model import Model
-
-    specs, values = list(specs), list(values)
-    if len(specs) != len(values):
-        raise InputError("values", values, f"one value per parameter spec ({len(specs)})")
+def _edited_tables(db, specs, values) -> dict:
+    """The tables of ``db`` with each parameter spec set to its value (edited copies; the others as they are)."""
     tables: dict = {}
     for spec, value in zip(specs, values):
         base, coef = _split(spec)
-        name, table, sel = _select(model.db, base, tables.get(_TABLE_OF.get(base[0] if base else None)))
+        name, table, sel = _select(db, base, tables.get(_TABLE_OF.get(base[0] if base else None)))
         if coef not in _COEF:
             raise InputError("parameter", spec, f"a coefficient among {tempfn.COEFFS} or '{CP}'")
         cells = {"a3": tempfn.TR * float(value), "a4": float(value)} if coef == CP else {coef: float(value)}
@@ -272,7 +267,113 @@ def with_parameters(model, specs, values):
                 table[c] = table[c].astype(float)
             table.loc[sel, c] = v
         tables[name] = table
-    return Model(model.db.with_tables(**tables))
+    return tables
+
+
+def _all_tables(db, specs, values) -> dict:
+    tables = _edited_tables(db, specs, values)
+    return {t: tables.get(t, getattr(db, t)) for t in ("binary", "mixing", "solids")}
+
+
+#: where the specs of a model live in its coefficient arrays (see _targets), per model
+_TARGETS: weakref.WeakKeyDictionary = weakref.WeakKeyDictionary()
+_BINARY_KINDS = ("beta0", "beta1", "beta2", "cphi")
+
+
+def _targets(model, specs):
+    """For each spec, the cells of the model's coefficient arrays that hold it: a list of
+    (array name, index tuple, {coefficient column: multiplier of the value}); None when a spec
+    names a θ or ψ row absent from the database (adding a row changes more than arrays)."""
+    key = tuple(tuple(s) for s in specs)
+    known = _TARGETS.get(model)
+    if known is not None and key in known:
+        return known[key]
+    out = []
+    cols = {c: i for i, c in enumerate(tempfn.COEFFS)}
+    for spec in specs:
+        base, coef = _split(spec)
+        name, table, sel = _select(model.db, base)  # the checks and errors of with_parameters
+        if coef not in _COEF:
+            raise InputError("parameter", spec, f"a coefficient among {tempfn.COEFFS} or '{CP}'")
+        if len(table) != len(getattr(model.db, name)) or int(sel.sum()) != 1:
+            out = None
+            break
+        mult = {cols["a3"]: tempfn.TR, cols["a4"]: 1.0} if coef == CP else {cols[coef]: 1.0}
+        kind = base[0]
+        ci = {s: i for i, s in enumerate(model.cations)}
+        ai = {s: i for i, s in enumerate(model.anions)}
+        if kind == "lnk":
+            cells = [("solids", (model.solids.index[base[1]],))]
+        elif kind in _BINARY_KINDS:
+            cells = [(kind, (ci[base[1]], ai[base[2]]))]
+        else:
+            row = table[sel].iloc[0]
+            s1, s2, s3 = row["species1"], row["species2"], row["species3"]
+            if kind == "theta":
+                arr, ix = ("_co_theta_c", ci) if s1 in ci else ("_co_theta_a", ai)
+                cells = [(arr, (ix[s1], ix[s2])), (arr, (ix[s2], ix[s1]))]
+            else:
+                arr, ix, ox = ("_co_psi_c", ci, ai) if s1 in ci else ("_co_psi_a", ai, ci)
+                cells = [(arr, (ix[s1], ix[s2], ox[s3])), (arr, (ix[s2], ix[s1], ox[s3]))]
+        out.append((cells, mult))
+    _TARGETS.setdefault(model, {})[key] = out
+    return out
+
+
+def with_parameters(model, specs, values):
+    """A new model whose database has each parameter spec set to its value.
+
+    Specs as for :func:`fit_parameters`; the model's own database is not changed. The new model
+    is a copy of ``model`` whose coefficient arrays hold the new values (the same numbers as a
+    model built from edited tables); its database tables are written when first read.
+    """
+    import functools
+
+    from phasekit.model import Model
+    from phasekit.thermo.database import PendingDatabase
+
+    specs, values = list(specs), list(values)
+    if len(specs) != len(values):
+        raise InputError("values", values, f"one value per parameter spec ({len(specs)})")
+    targets = _targets(model, specs) if isinstance(model, Model) else None
+    if targets is None:
+        return Model(model.db.with_tables(**_edited_tables(model.db, specs, values)))
+    new = object.__new__(Model)
+    new.__dict__.update(model.__dict__)
+    new.__dict__.pop("overlay_stderr", None)
+    new.overlays = []
+    new._cache = {}
+    new._validity_cache = {}
+    new._co_binary = dict(model._co_binary)
+    copied: set = set()
+    solids = None
+    for (cells, mult), value in zip(targets, values):
+        value = float(value)
+        for arr_name, ix in cells:
+            if arr_name == "solids":
+                if solids is None:
+                    solids = copy.copy(model.solids)
+                    solids.coeffs = model.solids.coeffs.copy()
+                arr = solids.coeffs
+            elif arr_name in _BINARY_KINDS:
+                if arr_name not in copied:
+                    new._co_binary[arr_name] = new._co_binary[arr_name].copy()
+                    copied.add(arr_name)
+                arr = new._co_binary[arr_name]
+            else:
+                if arr_name not in copied:
+                    setattr(new, arr_name, getattr(model, arr_name).copy())
+                    copied.add(arr_name)
+                arr = getattr(new, arr_name)
+            for col, m in mult.items():
+                arr[ix + (col,)] = m * value if m != 1.0 else value
+    if solids is not None:
+        solids.solids = [dataclasses.replace(s, coeffs=tuple(float(x) for x in solids.coeffs[k]))
+                         if tuple(float(x) for x in solids.coeffs[k]) != tuple(s.coeffs) else s
+                         for k, s in enumerate(model.solids.solids)]
+        new.solids = solids
+    new.db = PendingDatabase(model.db, functools.partial(_all_tables, model.db, specs, values))
+    return new
 
 
 def fit_parameters(parameters: list, data: pd.DataFrame, model=None, residual: str = "ln_k",

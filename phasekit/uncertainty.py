@@ -13,6 +13,7 @@ chunks with their own seeds, giving the same numbers as a local run.
 from __future__ import annotations
 
 import warnings
+import weakref
 from dataclasses import dataclass
 
 import numpy as np
@@ -66,28 +67,55 @@ def _specs_and_cov(parameters):
     return specs, np.diag(np.square(sds))
 
 
-def perturbed_model(model, specs, deltas):
-    """A model with each parameter spec moved by ``delta`` from its database value."""
-    from phasekit.fitting import _select, _split, with_parameters
-    from phasekit.model import Model
+#: (parameter specs of phasekit.fitting.with_parameters, their database values) per model and specs
+_BASE: weakref.WeakKeyDictionary = weakref.WeakKeyDictionary()
 
-    solids = model.db.solids.copy()
-    pitzer_specs, pitzer_values = [], []
-    for spec, d in zip(specs, deltas):
+
+def _base_values(model, specs):
+    """The specs as :func:`phasekit.fitting.with_parameters` specs, and their values in the model's
+    database (checked once per model and list of specs)."""
+    from phasekit.fitting import _select, _split
+
+    key = tuple(tuple(s) for s in specs)
+    known = _BASE.get(model)
+    if known is not None and key in known:
+        return known[key]
+    fit_specs, values = [], []
+    for spec in specs:
         if spec[0] == "solid":
             if len(spec) != 3 or spec[2] not in COEFFS:
                 raise InputError("parameter", spec, "('solid', name, 'a0'..'a4')")
             name = model.solids.resolve(spec[1])
-            sel = solids["solid"] == name
-            solids.loc[sel, spec[2]] = float(solids.loc[sel, spec[2]].iloc[0]) + d
+            solids = model.db.solids
+            fit_specs.append(("lnk", name, spec[2]))
+            values.append(float(solids.loc[solids["solid"] == name, spec[2]].iloc[0]))
         else:
             base, coef = _split(spec)
             _, table, sel = _select(model.db, base)
-            pitzer_specs.append(spec)
-            pitzer_values.append(float(table.loc[sel, coef].iloc[0]) + d)
-    new = Model(model.db.with_tables(solids=solids))
-    if pitzer_specs:
-        new = with_parameters(new, pitzer_specs, pitzer_values)
+            fit_specs.append(tuple(spec))
+            values.append(float(table.loc[sel, coef].iloc[0]))
+    out = (fit_specs, np.array(values))
+    _BASE.setdefault(model, {})[key] = out
+    return out
+
+
+def perturbed_model(model, specs, deltas):
+    """A model with each parameter spec moved by ``delta`` from its database value.
+
+    The model is a copy of ``model`` with its coefficient arrays changed
+    (:func:`phasekit.fitting.with_parameters`), not a database rebuilt from its tables.
+    """
+    from phasekit.fitting import with_parameters
+
+    fit_specs, base = _base_values(model, specs)
+    values, moved = [], {}
+    for spec, b, d in zip(fit_specs, base, deltas):
+        if spec[0] == "lnk":  # a solid named twice moves by both deltas
+            moved[spec] = moved.get(spec, float(b)) + d
+            values.append(moved[spec])
+        else:
+            values.append(float(b) + d)
+    new = with_parameters(model, fit_specs, values)
     new.overlays = list(getattr(model, "overlays", []))
     return new
 
@@ -182,7 +210,13 @@ def onset_concentration_factor(model, brine, temp_c: float, solid: str | None = 
         if si(1.0) >= 0:
             return 1.0
         grid = np.geomspace(1.0, cf_max, 60)
-        vals = [si(c) for c in grid]
+        # the grid in one call of the model; values within 1e-9 of saturation are evaluated again one
+        # by one, as the root-finding below does, so that the bracket is the one a row-by-row scan finds
+        s_grid = saturation_indices(model, m0[None, :] * grid[:, None], float(temp_c))
+        s_grid = np.where(np.isfinite(s_grid), s_grid, -np.inf)
+        vals = s_grid.max(axis=1) if k_sel is None else s_grid[:, k_sel]
+        for i in np.flatnonzero(np.abs(vals) < 1e-9):
+            vals[i] = si(grid[i])
         hit = next((i for i, v in enumerate(vals) if v >= 0), None)
         if hit is None:
             raise InputError("brine", "does not reach saturation", f"a brine that saturates below CF {cf_max:g}")

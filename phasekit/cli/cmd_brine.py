@@ -2,9 +2,12 @@
 
 from __future__ import annotations
 
-import pandas as pd
+from typing import TYPE_CHECKING
 
 from phasekit.cli import common as c
+
+if TYPE_CHECKING:
+    import pandas as pd
 
 
 def _head(brine, temp_c) -> dict:
@@ -27,6 +30,8 @@ def _saturation(args) -> c.Report:
 
 
 def _solids_table(model, res) -> pd.DataFrame:
+    import pandas as pd
+
     grams = res.solids_mass_g(model)
     return pd.DataFrame({"mol_per_kg_water": [res.solids[s] for s in res.solids],
                          "g_per_kg_water": [grams[s] for s in res.solids]},

@@ -2,14 +2,14 @@
 
 from __future__ import annotations
 
-import pandas as pd
-
 from phasekit.cli import common as c
 
 PROPERTIES = ("freezing", "boiling", "vapour")
 
 
 def _colligative(args) -> c.Report:
+    import pandas as pd
+
     import phasekit as pk
 
     (brine,) = c.read_brines(args)

@@ -9,8 +9,6 @@ from __future__ import annotations
 
 import importlib
 
-import pandas as pd
-
 from phasekit.cli import common as c
 
 SYSTEMS = ("ternary", "reciprocal", "reciprocal-nitrate", "seawater")
@@ -43,6 +41,8 @@ def figure_function(name: str):
 
 def diagram_report(res, scalars: dict, main: str, show: list) -> c.Report:
     """Report of a diagram result (its tables by name, its warnings)."""
+    import pandas as pd
+
     tables = {name: df for name, df in res.tables().items() if isinstance(df, pd.DataFrame)}
     return c.Report(scalars=scalars, tables=tables, main=main if main in tables else next(iter(tables), None),
                     warnings=list(getattr(res, "warnings", []) or []), show=[s for s in show if s in tables])

@@ -4,20 +4,23 @@ from __future__ import annotations
 
 import os
 from pathlib import Path
+from typing import TYPE_CHECKING
 
-import pandas as pd
-
-from phasekit.chemistry.species import is_species
-from phasekit.chemistry.tables import PROBLEM_COLUMN
 from phasekit.cli import common as c
 from phasekit.errors import InputError
-from phasekit.overlay import PARAM_KINDS, overlay_from_fit
+
+if TYPE_CHECKING:
+    import pandas as pd
 
 _NUMERIC = ("temp_c", "molality", "mass_percent", "grams_per_100g_water")
 
 
 def _read_data(path: str) -> pd.DataFrame:
+    import pandas as pd
+
     from phasekit.batch.source import read_source
+    from phasekit.chemistry.species import is_species
+    from phasekit.chemistry.tables import PROBLEM_COLUMN
 
     df = read_source(path)
     out = df.drop(columns=[PROBLEM_COLUMN], errors="ignore")
@@ -68,6 +71,8 @@ def _check_save_path(args) -> Path | None:
 
 def _savable(specs) -> None:
     """Only what an overlay file can hold: theta, psi and binary parameters with a coefficient a0..a4."""
+    from phasekit.overlay import PARAM_KINDS
+
     for spec in specs:
         if spec[0] not in PARAM_KINDS or spec[-1] == "cp":
             raise InputError("--save-overlay", ":".join(spec), "a fit of theta, psi, beta0, beta1, beta2 or cphi "
@@ -76,7 +81,10 @@ def _savable(specs) -> None:
 
 def save_overlay(res, args, target: Path, data: pd.DataFrame) -> str:
     """Write the fit as an overlay (checked by applying it before it replaces ``target``); its name."""
+    import pandas as pd
+
     from phasekit.model import default_model
+    from phasekit.overlay import overlay_from_fit
 
     name = (args.overlay_name or target.stem).strip()
     source = args.overlay_source or f"fitted in this project to {Path(args.data).name}"
@@ -95,6 +103,8 @@ def save_overlay(res, args, target: Path, data: pd.DataFrame) -> str:
 
 
 def _fit(args) -> c.Report:
+    import pandas as pd
+
     from phasekit import fitting
 
     target = _check_save_path(args)

@@ -2,8 +2,6 @@
 
 from __future__ import annotations
 
-import pandas as pd
-
 from phasekit.cli import common as c
 from phasekit.errors import InputError
 
@@ -23,6 +21,8 @@ def _partial(rep: c.Report, complete: bool, reason: str) -> c.Report:
 
 
 def _path_report(res, scalars: dict, x: str, title: str) -> c.Report:
+    import pandas as pd
+
     first = res.first_solid
     scalars = dict(scalars)
     scalars.update({"mode": res.mode, "complete": res.complete, "stop_reason": res.stop_reason,
@@ -189,6 +189,8 @@ def _dilution(text: str):
 
 
 def _convert(args) -> c.Report:
+    import pandas as pd
+
     import phasekit as pk
 
     (feed,) = c.read_brines(args)

@@ -3,8 +3,6 @@ with its Monte Carlo uncertainty (:mod:`phasekit.uncertainty`)."""
 
 from __future__ import annotations
 
-import pandas as pd
-
 from phasekit.cli import common as c
 from phasekit.errors import InputError
 
@@ -24,6 +22,8 @@ def parse_sd(text: str) -> tuple:
 
 
 def _onset(args) -> c.Report:
+    import pandas as pd
+
     from phasekit.uncertainty import monte_carlo, onset_concentration_factor, onset_predictor
 
     (brine,) = c.read_brines(args)

@@ -16,11 +16,12 @@ import textwrap
 from collections.abc import Callable
 from dataclasses import dataclass, field
 from pathlib import Path
-
-import numpy as np
-import pandas as pd
+from typing import TYPE_CHECKING
 
 from phasekit.errors import InputError
+
+if TYPE_CHECKING:
+    import pandas as pd
 
 # ------------------------------------------------------------------------------------ exit codes
 EXIT_OK = 0
@@ -323,6 +324,8 @@ def read_brines(args, count: int = 1) -> list:
 
 def brine_table(brine) -> pd.DataFrame:
     """Molality and mass % of each species of a brine."""
+    import pandas as pd
+
     m = brine.molalities
     pct = brine.mass_percent
     return pd.DataFrame({"molality": list(m.values()), "mass_percent": [pct[s] for s in m]},
@@ -346,6 +349,9 @@ class Report:
 
 
 def _plain(v):
+    import numpy as np
+    import pandas as pd
+
     if isinstance(v, np.generic):
         v = v.item()
     if isinstance(v, float) and not math.isfinite(v):
@@ -360,17 +366,23 @@ def _plain(v):
 
 
 def _records(df: pd.DataFrame) -> list:
+    import pandas as pd
+
     frame = df.reset_index() if df.index.name is not None or not isinstance(df.index, pd.RangeIndex) else df
     return [{str(k): _plain(v) for k, v in row.items()} for row in frame.to_dict("records")]
 
 
 def _fmt(v) -> str:
+    import numpy as np
+
     if isinstance(v, float | np.floating):
         return f"{v:.6g}"
     return str(v)
 
 
 def _text(report: Report, only: str | None) -> str:
+    import pandas as pd
+
     out = io.StringIO()
     for k, v in report.scalars.items():
         if isinstance(v, list | tuple):
@@ -403,6 +415,8 @@ def _format_of(args) -> str:
 
 def emit(report: Report, args) -> None:
     """Write ``report`` as ``--format`` to ``--output`` (or stdout); draw ``--plot``."""
+    import pandas as pd
+
     fmt = _format_of(args)
     only = getattr(args, "table", None)
     if getattr(args, "plot", None):
@@ -448,6 +462,8 @@ def emit(report: Report, args) -> None:
 
 
 def _write_xlsx(report: Report, path: str) -> None:
+    import pandas as pd
+
     if Path(path).suffix.lower() != ".xlsx":
         raise InputError("--output", path, "a file name ending in .xlsx for --format xlsx")
     try:

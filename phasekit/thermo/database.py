@@ -83,3 +83,30 @@ class Database:
                 raise InputError("pitzer_mixing.csv kind", row.kind, "'theta' or 'psi'")
             if not isinstance(row.source, str) or not row.source.strip():
                 raise InputError("pitzer_mixing.csv source", row.source, "a named source")
+
+
+class PendingDatabase(Database):
+    """A database whose tables (``binary``, ``mixing``, ``solids``) are written on first access.
+
+    A model whose coefficient arrays were changed in place of its tables (Monte Carlo samples,
+    fits: :func:`phasekit.fitting.with_parameters`) carries one: its other attributes are those
+    of ``base``, and ``make_tables()`` (picklable, e.g. a functools.partial of a module-level
+    function) returns every table, edited or not, passed through :meth:`Database.with_tables` (so checked
+    as before) when one of them is first read.
+    """
+
+    _TABLES = ("binary", "mixing", "solids")
+
+    def __init__(self, base: Database, make_tables):
+        self.__dict__.update({k: v for k, v in base.__dict__.items() if k not in self._TABLES})
+        self._make_tables = make_tables
+
+    def __getattr__(self, name):
+        # only called for attributes not set: the tables, before their first access
+        if name not in self._TABLES or "_make_tables" not in self.__dict__:
+            raise AttributeError(name)
+        tables = self._make_tables()  # every table, edited or not
+        full = Database.with_tables(self, **{t: tables[t] for t in self._TABLES})
+        for t in self._TABLES:
+            self.__dict__[t] = full.__dict__[t]
+        return self.__dict__[name]

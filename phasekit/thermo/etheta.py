@@ -76,11 +76,23 @@ def j_pitzer_approx(x):
     return x / (4.0 + 4.581 * x**-0.7237 * np.exp(-0.0120 * x**0.528))
 
 
+def lnx_grid() -> np.ndarray:
+    """The grid of ln x of the J table."""
+    return np.linspace(_LNX_MIN, _LNX_MAX, 360)
+
+
+def lnj_values(lnx) -> np.ndarray:
+    """ln J by quadrature at every ln x of ``lnx``."""
+    return np.log(j_quadrature(np.exp(lnx)))
+
+
 @lru_cache(maxsize=1)
 def _spline() -> CubicSpline:
-    lnx = np.linspace(_LNX_MIN, _LNX_MAX, 360)
-    lnj = np.log(j_quadrature(np.exp(lnx)))
-    return CubicSpline(lnx, lnj)
+    from phasekit.thermo.tables import stored_values
+
+    lnx = lnx_grid()
+    lnj = stored_values("etheta_lnj", lnx)  # precomputed (the same numbers), see phasekit.thermo.tables
+    return CubicSpline(lnx, lnj if lnj is not None else lnj_values(lnx))
 
 
 @lru_cache(maxsize=1)

@@ -64,148 +64,191 @@ def _gfun(x):
     return 2.0 * (1.0 - (1.0 + x) * ex) / x2, -2.0 * (1.0 - (1.0 + x + 0.5 * x2) * ex) / x2, ex
 
 
-def _pitzer_rows(m, nc, zc, za, beta0, beta1, beta2, ualpha, ia1, ia2, cc, theta_c, theta_a, psi_c, psi_a,
-                aphi, x0, h, coef, kmax, ln_gamma, osmotic, ln_aw, ionic, gex, m_water):
-    """Evaluate the Pitzer model for every row of ``m`` (N, ns); results written in place.
+@numba.njit(cache=True, inline="always")
+def _row(r, m, nc, zc, za, beta0, beta1, beta2, ualpha, ia1, ia2, cc, theta_c, theta_a, psi_c, psi_a,
+         aphi, x0, h, coef, kmax, ln_gamma, osmotic, ln_aw, ionic, gex, m_water, gu, gpu, eu):
+    """Evaluate the Pitzer model for row ``r`` of ``m`` (N, ns); results written in place.
 
     ``ualpha`` holds the distinct alpha values; ``ia1[i, a]``, ``ia2[i, a]`` index the pair's
-    alpha1 and alpha2 in it (-1: no beta2 term). ``cc`` is C = C^phi / (2 sqrt|z_c z_a|); psi_c[i, j, a], psi_a[a, b, c] are symmetric
-    in their first two indices with zero diagonal; theta matrices have zero diagonal.
+    alpha1 and alpha2 in it (-1: no beta2 term). ``cc`` is C = C^phi / (2 sqrt|z_c z_a|); psi_c[i, j, a],
+    psi_a[a, b, c] are symmetric in their first two indices with zero diagonal; theta matrices have
+    zero diagonal. ``gu``, ``gpu``, ``eu`` are scratch arrays of the length of ``ualpha``.
     """
-    n, ns = m.shape
+    ns = m.shape[1]
     na = ns - nc
-    for r in numba.prange(n):
-        mc = m[r, :nc]
-        ma = m[r, nc:]
-        ion = 0.0
-        zt = 0.0
-        sum_m = 0.0
-        for i in range(nc):
-            ion += 0.5 * mc[i] * zc[i] * zc[i]
-            zt += mc[i] * zc[i]
-            sum_m += mc[i]
+    mc = m[r, :nc]
+    ma = m[r, nc:]
+    ion = 0.0
+    zt = 0.0
+    sum_m = 0.0
+    for i in range(nc):
+        ion += 0.5 * mc[i] * zc[i] * zc[i]
+        zt += mc[i] * zc[i]
+        sum_m += mc[i]
+    for a in range(na):
+        ion += 0.5 * ma[a] * za[a] * za[a]
+        zt += ma[a] * za[a]
+        sum_m += ma[a]
+    ionic[r] = ion
+    if ion <= 0.0:
+        for s in range(ns):
+            ln_gamma[r, s] = 0.0
+        osmotic[r] = 1.0
+        ln_aw[r] = 0.0
+        gex[r] = 0.0
+        return
+    si = math.sqrt(ion)
+    bsi = 1.0 + B_DH * si
+    fgam = -aphi * (si / bsi + (2.0 / B_DH) * math.log(bsi))
+    # functions of alpha sqrt(I), once per distinct alpha (gu, gpu, eu: scratch of the caller)
+    nu = ualpha.shape[0]
+    for u in range(nu):
+        gu[u], gpu[u], eu[u] = _gfun(ualpha[u] * si)
+    # E-theta of a 1-2 charge pair, the only unlike pair of the present species set
+    e12, e12p = _etheta(1.0, 2.0, aphi, ion, x0, h, coef, kmax)
+    # pair terms
+    # accumulate the composition-dependent terms in the output row itself
+    lnc = ln_gamma[r, :nc]
+    lna = ln_gamma[r, nc:]
+    for s in range(ns):
+        ln_gamma[r, s] = 0.0
+    sum_bp = 0.0
+    sum_b = 0.0  # Σ m_c m_a (2B + Z C)
+    sum_bphi = 0.0  # Σ m_c m_a (B^phi + Z C)
+    mx = 0.0  # Σ m_c m_a C
+    for i in range(nc):
         for a in range(na):
-            ion += 0.5 * ma[a] * za[a] * za[a]
-            zt += ma[a] * za[a]
-            sum_m += ma[a]
-        ionic[r] = ion
-        if ion <= 0.0:
-            for s in range(ns):
-                ln_gamma[r, s] = 0.0
-            osmotic[r] = 1.0
-            ln_aw[r] = 0.0
-            gex[r] = 0.0
-            continue
-        si = math.sqrt(ion)
-        bsi = 1.0 + B_DH * si
-        fgam = -aphi * (si / bsi + (2.0 / B_DH) * math.log(bsi))
-        # functions of alpha sqrt(I), once per distinct alpha
-        nu = ualpha.shape[0]
+            b0 = beta0[i, a]
+            u1 = ia1[i, a]
+            bb = b0 + beta1[i, a] * gu[u1]
+            bp = beta1[i, a] * gpu[u1]
+            bphi = b0 + beta1[i, a] * eu[u1]
+            u2 = ia2[i, a]
+            if u2 >= 0:
+                bb += beta2[i, a] * gu[u2]
+                bp += beta2[i, a] * gpu[u2]
+                bphi += beta2[i, a] * eu[u2]
+            bp /= ion
+            c = cc[i, a]
+            t = 2.0 * bb + zt * c
+            lnc[i] += ma[a] * t
+            lna[a] += mc[i] * t
+            w = mc[i] * ma[a]
+            sum_bp += w * bp
+            sum_b += w * t
+            sum_bphi += w * (bphi + zt * c)
+            mx += w * c
+    # like-sign mixing: theta, E-theta, psi
+    sum_phip = 0.0
+    sum_phi = 0.0  # Σ_{i<j} m_i m_j Φ
+    sum_phiphi = 0.0  # Σ_{i<j} m_i m_j Φ^phi
+    sum_psi = 0.0
+    for i in range(nc):
+        for j in range(i + 1, nc):
+            th = theta_c[i, j]
+            e = 0.0
+            ep = 0.0
+            if zc[i] != zc[j]:
+                if zc[i] * zc[j] == 2.0:
+                    e, ep = e12, e12p
+                else:
+                    e, ep = _etheta(zc[i], zc[j], aphi, ion, x0, h, coef, kmax)
+            phi = th + e
+            w = mc[i] * mc[j]
+            lnc[i] += 2.0 * mc[j] * phi
+            lnc[j] += 2.0 * mc[i] * phi
+            sum_phip += w * ep
+            sum_phi += w * phi
+            sum_phiphi += w * (phi + ion * ep)
+            for a in range(na):
+                ps = psi_c[i, j, a]
+                if ps != 0.0:
+                    lnc[i] += mc[j] * ma[a] * ps
+                    lnc[j] += mc[i] * ma[a] * ps
+                    lna[a] += w * ps
+                    sum_psi += w * ma[a] * ps
+    for a in range(na):
+        for b in range(a + 1, na):
+            th = theta_a[a, b]
+            e = 0.0
+            ep = 0.0
+            if za[a] != za[b]:
+                if za[a] * za[b] == 2.0:
+                    e, ep = e12, e12p
+                else:
+                    e, ep = _etheta(za[a], za[b], aphi, ion, x0, h, coef, kmax)
+            phi = th + e
+            w = ma[a] * ma[b]
+            lna[a] += 2.0 * ma[b] * phi
+            lna[b] += 2.0 * ma[a] * phi
+            sum_phip += w * ep
+            sum_phi += w * phi
+            sum_phiphi += w * (phi + ion * ep)
+            for i in range(nc):
+                ps = psi_a[a, b, i]
+                if ps != 0.0:
+                    lna[a] += ma[b] * mc[i] * ps
+                    lna[b] += ma[a] * mc[i] * ps
+                    lnc[i] += w * ps
+                    sum_psi += w * mc[i] * ps
+    big_f = fgam + sum_bp + sum_phip
+    for i in range(nc):
+        lnc[i] += zc[i] * zc[i] * big_f + zc[i] * mx
+    for a in range(na):
+        lna[a] += za[a] * za[a] * big_f + za[a] * mx
+    gex[r] = -aphi * (4.0 * ion / B_DH) * math.log(bsi) + sum_b + 2.0 * sum_phi + sum_psi
+    osm_sum = 2.0 * (-aphi * ion * si / bsi + sum_bphi + sum_phiphi + sum_psi)
+    osmotic[r] = 1.0 + osm_sum / sum_m
+    ln_aw[r] = -m_water * (sum_m + osm_sum)
+
+
+# The two drivers below are two functions, each compiled (and cached on disk) on its own: numba
+# keys its cache by the function, so one function compiled twice with and without parallel=True
+# shared one cache entry, and whichever variant was compiled first served both.
+
+
+@numba.njit(cache=True)
+def pitzer_rows_serial(m, nc, zc, za, beta0, beta1, beta2, ualpha, ia1, ia2, cc, theta_c, theta_a, psi_c, psi_a,
+                       aphi, x0, h, coef, kmax, ln_gamma, osmotic, ln_aw, ionic, gex, m_water):
+    """Every row of ``m`` on the calling thread (few rows: no thread start-up). See :func:`_row`."""
+    nu = ualpha.shape[0]
+    gu = np.empty(nu)
+    gpu = np.empty(nu)
+    eu = np.empty(nu)
+    for r in range(m.shape[0]):
+        _row(r, m, nc, zc, za, beta0, beta1, beta2, ualpha, ia1, ia2, cc, theta_c, theta_a, psi_c, psi_a,
+             aphi, x0, h, coef, kmax, ln_gamma, osmotic, ln_aw, ionic, gex, m_water, gu, gpu, eu)
+
+
+@numba.njit(cache=True, parallel=True)
+def pitzer_rows_parallel(m, nc, zc, za, beta0, beta1, beta2, ualpha, ia1, ia2, cc, theta_c, theta_a, psi_c,
+                         psi_a, aphi, x0, h, coef, kmax, ln_gamma, osmotic, ln_aw, ionic, gex, m_water,
+                         chunk_thread):
+    """Every row of ``m``, in ``len(chunk_thread)`` contiguous chunks spread over numba's threads.
+
+    ``chunk_thread[k]`` receives the id of the thread that computed chunk ``k`` (numba.get_thread_id),
+    so that a caller (and the tests) can see the work was shared. Each row is computed by the same
+    :func:`_row` as in :func:`pitzer_rows_serial`, so both variants give the same numbers.
+    """
+    n = m.shape[0]
+    nchunk = chunk_thread.shape[0]
+    nu = ualpha.shape[0]
+    for k in numba.prange(nchunk):
         gu = np.empty(nu)
         gpu = np.empty(nu)
         eu = np.empty(nu)
-        for u in range(nu):
-            gu[u], gpu[u], eu[u] = _gfun(ualpha[u] * si)
-        # E-theta of a 1-2 charge pair, the only unlike pair of the present species set
-        e12, e12p = _etheta(1.0, 2.0, aphi, ion, x0, h, coef, kmax)
-        # pair terms
-        # accumulate the composition-dependent terms in the output row itself
-        lnc = ln_gamma[r, :nc]
-        lna = ln_gamma[r, nc:]
-        for s in range(ns):
-            ln_gamma[r, s] = 0.0
-        sum_bp = 0.0
-        sum_b = 0.0  # Σ m_c m_a (2B + Z C)
-        sum_bphi = 0.0  # Σ m_c m_a (B^phi + Z C)
-        mx = 0.0  # Σ m_c m_a C
-        for i in range(nc):
-            for a in range(na):
-                b0 = beta0[i, a]
-                u1 = ia1[i, a]
-                bb = b0 + beta1[i, a] * gu[u1]
-                bp = beta1[i, a] * gpu[u1]
-                bphi = b0 + beta1[i, a] * eu[u1]
-                u2 = ia2[i, a]
-                if u2 >= 0:
-                    bb += beta2[i, a] * gu[u2]
-                    bp += beta2[i, a] * gpu[u2]
-                    bphi += beta2[i, a] * eu[u2]
-                bp /= ion
-                c = cc[i, a]
-                t = 2.0 * bb + zt * c
-                lnc[i] += ma[a] * t
-                lna[a] += mc[i] * t
-                w = mc[i] * ma[a]
-                sum_bp += w * bp
-                sum_b += w * t
-                sum_bphi += w * (bphi + zt * c)
-                mx += w * c
-        # like-sign mixing: theta, E-theta, psi
-        sum_phip = 0.0
-        sum_phi = 0.0  # Σ_{i<j} m_i m_j Φ
-        sum_phiphi = 0.0  # Σ_{i<j} m_i m_j Φ^phi
-        sum_psi = 0.0
-        for i in range(nc):
-            for j in range(i + 1, nc):
-                th = theta_c[i, j]
-                e = 0.0
-                ep = 0.0
-                if zc[i] != zc[j]:
-                    if zc[i] * zc[j] == 2.0:
-                        e, ep = e12, e12p
-                    else:
-                        e, ep = _etheta(zc[i], zc[j], aphi, ion, x0, h, coef, kmax)
-                phi = th + e
-                w = mc[i] * mc[j]
-                lnc[i] += 2.0 * mc[j] * phi
-                lnc[j] += 2.0 * mc[i] * phi
-                sum_phip += w * ep
-                sum_phi += w * phi
-                sum_phiphi += w * (phi + ion * ep)
-                for a in range(na):
-                    ps = psi_c[i, j, a]
-                    if ps != 0.0:
-                        lnc[i] += mc[j] * ma[a] * ps
-                        lnc[j] += mc[i] * ma[a] * ps
-                        lna[a] += w * ps
-                        sum_psi += w * ma[a] * ps
-        for a in range(na):
-            for b in range(a + 1, na):
-                th = theta_a[a, b]
-                e = 0.0
-                ep = 0.0
-                if za[a] != za[b]:
-                    if za[a] * za[b] == 2.0:
-                        e, ep = e12, e12p
-                    else:
-                        e, ep = _etheta(za[a], za[b], aphi, ion, x0, h, coef, kmax)
-                phi = th + e
-                w = ma[a] * ma[b]
-                lna[a] += 2.0 * ma[b] * phi
-                lna[b] += 2.0 * ma[a] * phi
-                sum_phip += w * ep
-                sum_phi += w * phi
-                sum_phiphi += w * (phi + ion * ep)
-                for i in range(nc):
-                    ps = psi_a[a, b, i]
-                    if ps != 0.0:
-                        lna[a] += ma[b] * mc[i] * ps
-                        lna[b] += ma[a] * mc[i] * ps
-                        lnc[i] += w * ps
-                        sum_psi += w * mc[i] * ps
-        big_f = fgam + sum_bp + sum_phip
-        for i in range(nc):
-            lnc[i] += zc[i] * zc[i] * big_f + zc[i] * mx
-        for a in range(na):
-            lna[a] += za[a] * za[a] * big_f + za[a] * mx
-        gex[r] = -aphi * (4.0 * ion / B_DH) * math.log(bsi) + sum_b + 2.0 * sum_phi + sum_psi
-        osm_sum = 2.0 * (-aphi * ion * si / bsi + sum_bphi + sum_phiphi + sum_psi)
-        osmotic[r] = 1.0 + osm_sum / sum_m
-        ln_aw[r] = -m_water * (sum_m + osm_sum)
+        lo = (n * k) // nchunk
+        hi = (n * (k + 1)) // nchunk
+        for r in range(lo, hi):
+            _row(r, m, nc, zc, za, beta0, beta1, beta2, ualpha, ia1, ia2, cc, theta_c, theta_a, psi_c, psi_a,
+                 aphi, x0, h, coef, kmax, ln_gamma, osmotic, ln_aw, ionic, gex, m_water, gu, gpu, eu)
+        chunk_thread[k] = numba.get_thread_id()
 
 
-#: many rows: spread over the cores
-pitzer_rows_parallel = numba.njit(cache=True, parallel=True)(_pitzer_rows)
-#: few rows: no thread start-up
-pitzer_rows_serial = numba.njit(cache=True)(_pitzer_rows)
+#: from this many rows on, :class:`~phasekit.thermo.pitzer.PitzerModel` uses the parallel variant
 PARALLEL_MIN_ROWS = 256
+
+
+def chunks_for(n: int) -> int:
+    """Number of chunks of the parallel variant for ``n`` rows: a few per thread, for balance."""
+    return max(1, min(n, 4 * numba.get_num_threads()))

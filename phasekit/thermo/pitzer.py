@@ -30,7 +30,7 @@ from phasekit.chemistry.species import M_WATER
 from phasekit.errors import InputError, RangeError, warn_validity
 from phasekit.thermo import tempfn
 from phasekit.thermo.etheta import jtable
-from phasekit.thermo.kernel import PARALLEL_MIN_ROWS, pitzer_rows_parallel, pitzer_rows_serial
+from phasekit.thermo.kernel import PARALLEL_MIN_ROWS, chunks_for, pitzer_rows_parallel, pitzer_rows_serial
 from phasekit.thermo.water import T_LIQUID_MIN_C, T_MAX_C, T_MIN_C, aphi
 from phasekit.validate import MAX_MOLALITY
 
@@ -333,12 +333,13 @@ class PitzerModel:
         ln_gamma = np.empty_like(m)
         osm, ln_aw, ion, g = np.empty(n), np.empty(n), np.empty(n), np.empty(n)
         x0, h, coef, kmax = jtable()
-        rows = pitzer_rows_parallel if n >= PARALLEL_MIN_ROWS else pitzer_rows_serial
-        rows(
-            m, len(self.cations), self.zc, self.za, p["beta0"], p["beta1"], p["beta2"], p["ualpha"],
-            p["ia1"], p["ia2"], p["C"], p["theta_c"], p["theta_a"], p["psi_c"], p["psi_a"], p["aphi"],
-            x0, h, coef, kmax, ln_gamma, osm, ln_aw, ion, g, M_WATER,
-        )
+        args = (m, len(self.cations), self.zc, self.za, p["beta0"], p["beta1"], p["beta2"], p["ualpha"],
+                p["ia1"], p["ia2"], p["C"], p["theta_c"], p["theta_a"], p["psi_c"], p["psi_a"], p["aphi"],
+                x0, h, coef, kmax, ln_gamma, osm, ln_aw, ion, g, M_WATER)
+        if n >= PARALLEL_MIN_ROWS:
+            pitzer_rows_parallel(*args, np.empty(chunks_for(n), dtype=np.int64))
+        else:
+            pitzer_rows_serial(*args)
         return ln_gamma, osm, ln_aw, ion, g
 
     # ----------------------------------------------------------- public API

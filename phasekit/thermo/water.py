@@ -71,22 +71,40 @@ def aphi_exact(temp_c: float) -> float:
     return float((1.0 / 3.0) * np.sqrt(2.0 * np.pi * _NA * rho) * bjerrum**1.5)
 
 
+def aphi_grid() -> np.ndarray:
+    """The 1 K grid (°C) of the A_phi spline of the liquid from 0 °C."""
+    return np.arange(T_MIN_C - 1.0, T_MAX_C + 2.0, 1.0)
+
+
+def aphi_cold_grid() -> np.ndarray:
+    """The 1 K grid (°C) of the A_phi spline of supercooled water."""
+    return np.arange(T_LIQUID_MIN_C - 1.0, T_MIN_C + 2.0, 1.0)
+
+
+def aphi_values(grid) -> np.ndarray:
+    """A_phi from the IAPWS formulations at every temperature of ``grid`` (°C)."""
+    import warnings
+
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")  # iapws says "Using extrapolated values" for the metastable liquid
+        return np.array([aphi_exact(t) for t in grid])
+
+
+def _grid_spline(name: str, grid: np.ndarray) -> CubicSpline:
+    from phasekit.thermo.tables import stored_values
+
+    values = stored_values(name, grid)  # precomputed (the same numbers), see phasekit.thermo.tables
+    return CubicSpline(grid, values if values is not None else aphi_values(grid))
+
+
 @lru_cache(maxsize=1)
 def _aphi_spline() -> CubicSpline:
-    grid = np.arange(T_MIN_C - 1.0, T_MAX_C + 2.0, 1.0)
-    values = np.array([aphi_exact(t) for t in grid])
-    return CubicSpline(grid, values)
+    return _grid_spline("aphi", aphi_grid())
 
 
 @lru_cache(maxsize=1)
 def _aphi_cold_spline() -> CubicSpline:
-    import warnings
-
-    grid = np.arange(T_LIQUID_MIN_C - 1.0, T_MIN_C + 2.0, 1.0)
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore")  # iapws says "Using extrapolated values" for the metastable liquid
-        values = np.array([aphi_exact(t) for t in grid])
-    return CubicSpline(grid, values)
+    return _grid_spline("aphi_cold", aphi_cold_grid())
 
 
 def aphi(temp_c):
