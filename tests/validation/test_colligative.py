@@ -4,7 +4,7 @@ Every value is a row of ``data/reference/colligative.csv`` (role=check: none of 
 header cites each source in full and says where it was read):
 
 * freezing-point depressions of NaCl, KCl, MgCl2 and Na2SO4 solutions at 20 °C compositions, CRC Handbook 102nd
-  ed., "Concentrative properties of aqueous solutions" (from Wolf 1966), read in a transcription of the table;
+  ed., "Concentrative properties of aqueous solutions" (from Wolf 1966), read in a typed copy of the table;
 * the freezing point of seawater, UNESCO 1983 (Fofonoff & Millard, Unesco Tech. Pap. Mar. Sci. 44, p. 29), the
   polynomial's coefficients read and evaluated at S = 35, and its printed worked example at S = 33;
 * boiling-point elevations of concentrated seawater at 1 atm, Hakuta, Goto & Ishizaka 1974 (Bull. Soc. Sea Water

@@ -5,7 +5,7 @@ Reference values: the single-salt solubilities of ``data/reference/measured_bina
 Physics, 98th ed. (2017), "Aqueous solubility of inorganic compounds at various temperatures" (CRC98),
 its molality table (CRC98m), and the NaCl correlation of Potter, Babcock & Brown 1977 (PBB1977), read as
 the file's header says, and three recalled Na2SO4 rows (0, 10, 15 °C) of ``measured_recalled.csv``
-(from memory: the table's cells are blank in the transcriptions read). Only its ``role=check`` rows (0, 25, 50, 75, 100 °C, set by
+(from memory: the table's cells are blank in the typed copies read). Only its ``role=check`` rows (0, 25, 50, 75, 100 °C, set by
 rule before any model was run) are checks here; the ``role=fit`` rows calibrated ln K a0 of the solids and
 the temperature coefficients of the Pitzer parameters (``scripts/calibrate_solids.py``, configured by
 ``data/reference/calibration.toml``, with ΔH° and ΔCp° of ``data/reference/thermochemistry.csv``), within
