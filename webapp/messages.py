@@ -15,7 +15,7 @@ from phasekit.errors import PhasekitError
 
 log = logging.getLogger("phasekit.webapp")
 
-KEPT = "The previous result is kept."
+KEPT = "The previous result is kept, greyed out: it was computed for the previous inputs."
 
 
 class UserInputProblem(ValueError):

@@ -42,6 +42,26 @@ def test_bad_brine_values_are_shown_and_previous_result_kept(page):
         expect(page.locator("#brine-msg")).to_be_empty(timeout=15000)
 
 
+def _opacity(pg, selector):
+    return float(pg.evaluate(f"() => getComputedStyle(document.querySelector('{selector}')).opacity"))
+
+
+def test_stale_results_are_greyed_out_while_an_input_error_shows(page):
+    """Issue 17: no result computed for earlier inputs may look current next to an error."""
+    open_tab(page, "Evaporation & cooling")
+    sentence(page)
+    assert _opacity(page, "#path-sentence") == 1.0
+    type_in(page, pid("val", 0), "abc")
+    expect(page.locator("#brine-msg")).to_contain_text("greyed out", timeout=15000)
+    assert _opacity(page, "#path-sentence") < 0.5
+    assert _opacity(page, "#brine-molal-table") < 0.5
+    shot(page, "10-stale-greyed")
+    type_in(page, pid("val", 0), "10850")
+    expect(page.locator("#brine-msg")).to_be_empty(timeout=15000)
+    idle(page)
+    assert _opacity(page, "#path-sentence") == 1.0
+
+
 def test_bad_density_is_shown_next_to_it(page):
     choose(page, "brine-units", "mg/L")
     expect(page.locator("#brine-molal-table")).not_to_contain_text("0.48915", timeout=15000)
