@@ -334,43 +334,29 @@ def solve_robust(model, b, water, temp_c, candidates=None, warm: EquilibriumStat
         return solve(model, b, water, temp_c, candidates=candidates)
     except ConvergenceError as first:
         error = first
-    # start where the brine is undersaturated: dilute until the largest SI is below zero
-    factor = 1.0
-    for _ in range(60):
-        factor *= 2.0
-        m = np.where(b > 0, b / (water * factor), 0.0)
-        if np.nanmax(np.where(np.isfinite(s := _si(model, m, temp_c)), s, -np.inf)) < 0:
-            break
-    state = solve(model, b, water * factor, temp_c, candidates=candidates)
-    log_f = np.log(factor)
-    pos, step = log_f, log_f / 8.0
-    while pos > 0:
-        nxt = max(pos - step, 0.0)
-        try:
-            state = solve(model, b, water * np.exp(nxt), temp_c, initial_active=state.active,
-                          candidates=candidates, m0=state.m, w0=state.w * np.exp(nxt - pos), n0=state.n)
-            pos = nxt
-            step = min(step * 1.5, log_f / 4.0)
-        except ConvergenceError:
-            step /= 2.0
-            if step < 1e-6:
-                total = water * np.exp(pos)
-                if state.w < 0.02 * total:
-                    # the liquid vanished on the way: the solids (hydrates) bind nearly all the water
-                    raise ConvergenceError(
-                        f"no liquid at equilibrium at {temp_c:g} °C: {water:.4g} kg of water is not enough for "
-                        f"the solids ({', '.join(model.solids.names[k] for k in state.active)}), which bind "
-                        "nearly all of it as hydrate water; the mixture lies past its drying point",
-                        {"active": [model.solids.names[k] for k in state.active], "liquid_fraction":
-                         state.w / total, "water_kg": water},
-                    ) from None
-                raise ConvergenceError(f"{error} (continuation in water also failed)", error.state) from None
+    state, pos = _from_dilute(model, b, water, temp_c, candidates)
+    if pos > 0:
+        total = water * np.exp(pos)
+        if state.w < 0.02 * total:
+            # the liquid vanished on the way: the solids (hydrates) bind nearly all the water
+            raise ConvergenceError(
+                f"no liquid at equilibrium at {temp_c:g} °C: {water:.4g} kg of water is not enough for "
+                f"the solids ({', '.join(model.solids.names[k] for k in state.active)}), which bind "
+                "nearly all of it as hydrate water; the mixture lies past its drying point",
+                {"active": [model.solids.names[k] for k in state.active], "liquid_fraction":
+                 state.w / total, "water_kg": water},
+            ) from None
+        raise ConvergenceError(f"{error} (continuation in water also failed)", error.state) from None
     return state
 
 
-def _dilute_start(model, b, water, temp_c, candidates):
-    """Equilibrium reached by continuation from a dilute, undersaturated brine (the branch of the
-    activity model's solutions connected to dilute brines)."""
+def _from_dilute(model, b, water, temp_c, candidates):
+    """Continuation from a dilute, undersaturated brine (the branch of the activity model's solutions connected
+    to dilute brines): the totals ``b`` with enough water to be undersaturated, the water then taken away in
+    geometric steps, each solve warm-started from the last, a failed step halved.
+
+    Returns (last state, ln of the water factor still to go): 0 when ``water`` was reached.
+    """
     factor = 1.0
     for _ in range(60):
         factor *= 2.0
@@ -391,8 +377,8 @@ def _dilute_start(model, b, water, temp_c, candidates):
         except ConvergenceError:
             step /= 2.0
             if step < 1e-6:
-                raise
-    return state
+                break
+    return state, pos
 
 
 def _ionic_strength(model, m, temp_c) -> float:
@@ -462,7 +448,8 @@ def equilibrate(model, brine, temp_c: float, add_solids: dict | None = None, ini
         i_max = float(model.db.ionic_strength_max)
         if _ionic_strength(model, st.m, float(temp_c)) > i_max and not allow_beyond_validity:
             try:
-                again = _dilute_start(model, b, water, float(temp_c), cands)
+                again, left = _from_dilute(model, b, water, float(temp_c), cands)
+                again = again if left == 0 else None
             except ConvergenceError:
                 again = None
             if again is not None and _ionic_strength(model, again.m, float(temp_c)) <= i_max:
