@@ -13,6 +13,9 @@ import numba
 import numpy as np
 
 B_DH = 1.2
+#: ionic strength (mol/kg) below which a solution is taken as ideal: ln gamma ~ A_phi sqrt(I) < 1e-50 there, and
+#: the E-theta' term (divided by I^2) would underflow to a division by zero
+ION_IDEAL = 1e-100
 
 
 @numba.njit(cache=True, inline="always")
@@ -90,7 +93,7 @@ def _row(r, m, nc, zc, za, beta0, beta1, beta2, ualpha, ia1, ia2, cc, theta_c, t
         zt += ma[a] * za[a]
         sum_m += ma[a]
     ionic[r] = ion
-    if ion <= 0.0:
+    if ion <= ION_IDEAL:
         for s in range(ns):
             ln_gamma[r, s] = 0.0
         osmotic[r] = 1.0

@@ -91,3 +91,17 @@ def test_parallel_variant_still_parallel_when_serial_loads_first():
     root = Path(__file__).resolve().parents[2]
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, cwd=root, check=True)
     assert int(out.stdout.strip().splitlines()[-1]) > 1
+
+
+def test_vanishing_ionic_strength_is_ideal_not_a_division_by_zero():
+    # found by the property test: at I near 1e-224 the E-theta' term (divided by I squared) underflowed to a
+    # division by zero inside the compiled kernel
+    import phasekit as pk
+
+    model = pk.default_model()
+    m = np.zeros((2, len(model.species)))
+    m[0, model.index["Na"]] = m[0, model.index["Cl"]] = 1e-224
+    m[1, model.index["Mg"]] = 1e-224
+    m[1, model.index["Cl"]] = 2e-224
+    ln_g, osm, ln_aw, ion, _ = model.compute(m, 0.0)
+    assert np.all(ln_g == 0.0) and np.all(osm == 1.0) and np.all(ln_aw == 0.0)
